@@ -1,0 +1,1 @@
+//! Hamiltonian assembly and the rotating frame. (in progress)

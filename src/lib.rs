@@ -1,0 +1,14 @@
+//! levelplan: plan laser excitation schemes of atoms, ions and molecules.
+//!
+//! Data flows one way: scheme file ([`scheme`]) -> validated unit-free
+//! [`model::Model`] -> Hamiltonian and rotating frame ([`hamiltonian`]) ->
+//! exact propagation ([`solve`]) beside the perturbative estimate
+//! ([`estimate`]) -> [`report`] (plain data) -> renderers ([`render`]).
+//! No stage reaches back to an earlier one.
+
+pub mod estimate;
+pub mod hamiltonian;
+pub mod model;
+pub mod scheme;
+pub mod solve;
+pub mod units;

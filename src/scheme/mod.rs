@@ -1,0 +1,1 @@
+//! Scheme files: YAML text to a validated [`crate::model::Model`]. (in progress)
