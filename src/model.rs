@@ -380,6 +380,13 @@ impl Model {
         drive.rabi * self.fields[drive.field].envelope.area()
     }
 
+    /// Whether a drive is in the dynamics: |detuning| <= detuning cutoff.
+    /// Drives beyond the cutoff are left out of the propagation and listed
+    /// in reports with their perturbative estimate.
+    pub fn drive_included(&self, drive: &Drive) -> bool {
+        self.detuning(drive).abs() <= self.solver.detuning_cutoff
+    }
+
     /// Tolerance of a level (its own or the default).
     pub fn tolerance_of(&self, level: usize) -> f64 {
         self.levels[level].tolerance.unwrap_or(self.tolerance)
