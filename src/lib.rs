@@ -6,9 +6,16 @@
 //! ([`estimate`]) -> [`report`] (plain data) -> renderers ([`render`]).
 //! No stage reaches back to an earlier one.
 
+pub mod app;
+pub mod cli;
+pub mod error;
 pub mod estimate;
 pub mod hamiltonian;
 pub mod model;
+pub mod output;
+pub mod plot;
+pub mod render;
+pub mod report;
 pub mod scheme;
 pub mod solve;
 pub mod units;

@@ -1,0 +1,160 @@
+//! SVG plots (plotters): populations against time or against a scanned value.
+//!
+//! Owns: drawing finished numbers into an SVG string. Must not: compute
+//! physics or write files (the app writes the string atomically).
+
+use plotters::prelude::*;
+
+/// One curve: a name, points, and whether it is drawn dashed.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Curve {
+    pub name: String,
+    pub points: Vec<(f64, f64)>,
+    pub dashed: bool,
+    /// Colour index shared between an exact curve and its dashed estimate.
+    pub color: usize,
+}
+
+/// What to draw.
+#[derive(Debug, Clone, PartialEq)]
+pub struct LinePlot {
+    pub title: String,
+    pub x_label: String,
+    /// Multiply x values by this for the axis (e.g. 1e9 to show ns).
+    pub x_scale: f64,
+    pub y_label: String,
+    pub curves: Vec<Curve>,
+    /// Logarithmic population axis (spectators), floor at `log_floor`.
+    pub log_y: bool,
+    pub log_floor: f64,
+    /// Tolerance drawn as a dashed horizontal line.
+    pub tolerance: Option<f64>,
+}
+
+#[derive(Debug, thiserror::Error)]
+#[error("could not draw the plot: {0}")]
+pub struct PlotError(String);
+
+fn perr<E: std::fmt::Display>(e: E) -> PlotError {
+    PlotError(e.to_string())
+}
+
+const PALETTE: [RGBColor; 10] = [
+    RGBColor(31, 119, 180),
+    RGBColor(214, 39, 40),
+    RGBColor(44, 160, 44),
+    RGBColor(148, 103, 189),
+    RGBColor(255, 127, 14),
+    RGBColor(140, 86, 75),
+    RGBColor(227, 119, 194),
+    RGBColor(127, 127, 127),
+    RGBColor(188, 189, 34),
+    RGBColor(23, 190, 207),
+];
+
+fn builder<'a, 'b>(
+    root: &'a DrawingArea<SVGBackend<'b>, plotters::coord::Shift>,
+    title: &str,
+) -> ChartBuilder<'a, 'b, SVGBackend<'b>> {
+    let mut b = ChartBuilder::on(root);
+    b.caption(title, ("sans-serif", 20))
+        .margin(12)
+        .x_label_area_size(45)
+        .y_label_area_size(70);
+    b
+}
+
+/// Draw a line plot into an SVG document.
+pub fn line_svg(p: &LinePlot) -> Result<String, PlotError> {
+    let xs = p
+        .curves
+        .iter()
+        .flat_map(|c| c.points.iter().map(|q| q.0 * p.x_scale));
+    let (mut x0, mut x1) = xs.fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), x| {
+        (a.min(x), b.max(x))
+    });
+    if !x0.is_finite() || !x1.is_finite() {
+        return Err(PlotError("nothing to draw".into()));
+    }
+    if x1 <= x0 {
+        x0 -= 0.5;
+        x1 += 0.5;
+    }
+    let mut svg = String::new();
+    {
+        let root = SVGBackend::with_string(&mut svg, (900, 560)).into_drawing_area();
+        root.fill(&WHITE).map_err(perr)?;
+        let floor = p.log_floor.max(1e-300);
+        let clamp = |y: f64| if p.log_y { y.max(floor) } else { y };
+        macro_rules! draw {
+            ($chart:expr) => {{
+                let mut chart = $chart;
+                chart
+                    .configure_mesh()
+                    .x_desc(p.x_label.as_str())
+                    .y_desc(p.y_label.as_str())
+                    .draw()
+                    .map_err(perr)?;
+                for c in &p.curves {
+                    let color = PALETTE[c.color % PALETTE.len()];
+                    let pts: Vec<(f64, f64)> = c
+                        .points
+                        .iter()
+                        .map(|&(x, y)| (x * p.x_scale, clamp(y)))
+                        .collect();
+                    let style = color.stroke_width(2);
+                    if c.dashed {
+                        chart
+                            .draw_series(DashedLineSeries::new(pts, 6, 4, style))
+                            .map_err(perr)?
+                            .label(c.name.as_str())
+                            .legend(move |(x, y)| {
+                                PathElement::new(vec![(x, y), (x + 20, y)], color)
+                            });
+                    } else {
+                        chart
+                            .draw_series(LineSeries::new(pts, style))
+                            .map_err(perr)?
+                            .label(c.name.as_str())
+                            .legend(move |(x, y)| {
+                                PathElement::new(vec![(x, y), (x + 20, y)], color.stroke_width(2))
+                            });
+                    }
+                }
+                if let Some(t) = p.tolerance {
+                    let line = vec![(x0, clamp(t)), (x1, clamp(t))];
+                    chart
+                        .draw_series(DashedLineSeries::new(line, 4, 4, BLACK.stroke_width(1)))
+                        .map_err(perr)?
+                        .label("tolerance")
+                        .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], BLACK));
+                }
+                chart
+                    .configure_series_labels()
+                    .background_style(WHITE.mix(0.85))
+                    .border_style(BLACK)
+                    .position(SeriesLabelPosition::UpperRight)
+                    .draw()
+                    .map_err(perr)?;
+            }};
+        }
+        if p.log_y {
+            let ymax = p
+                .curves
+                .iter()
+                .flat_map(|c| c.points.iter().map(|q| q.1))
+                .fold(floor, f64::max)
+                .max(p.tolerance.unwrap_or(floor))
+                * 2.0;
+            draw!(builder(&root, &p.title)
+                .build_cartesian_2d(x0..x1, (floor..ymax.min(2.0)).log_scale())
+                .map_err(perr)?);
+        } else {
+            draw!(builder(&root, &p.title)
+                .build_cartesian_2d(x0..x1, 0.0..1.05f64)
+                .map_err(perr)?);
+        }
+        root.present().map_err(perr)?;
+    }
+    Ok(svg)
+}

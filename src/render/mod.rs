@@ -1,0 +1,97 @@
+//! Renderers: one small exporter per output format behind one trait.
+//!
+//! Owns: the choice of format and the [`Exporter`] trait. Adding a format is
+//! one file, one [`Format`] variant and one arm in [`exporter`]. Must not:
+//! compute physics — renderers take finished reports and write bytes to a
+//! `&mut dyn Write`; they never open files.
+
+pub mod csv;
+pub mod doc;
+pub mod json;
+pub mod latex;
+pub mod markdown;
+pub mod numfmt;
+pub mod text;
+
+use crate::report::{InspectReport, VetReport};
+use std::io::{self, Write};
+
+/// Output formats of the reports.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Format {
+    Text,
+    Markdown,
+    Latex,
+    Csv,
+    Json,
+}
+
+/// One exporter per format.
+pub trait Exporter {
+    fn vet(&self, report: &VetReport, w: &mut dyn Write) -> io::Result<()>;
+    fn inspect(&self, report: &InspectReport, w: &mut dyn Write) -> io::Result<()>;
+}
+
+struct TextExporter {
+    color: bool,
+}
+struct MarkdownExporter;
+struct LatexExporter;
+struct CsvExporter;
+struct JsonExporter;
+
+impl Exporter for TextExporter {
+    fn vet(&self, r: &VetReport, w: &mut dyn Write) -> io::Result<()> {
+        text::write(&doc::vet_doc(r), self.color, w)
+    }
+    fn inspect(&self, r: &InspectReport, w: &mut dyn Write) -> io::Result<()> {
+        text::write(&doc::inspect_doc(r), self.color, w)
+    }
+}
+
+impl Exporter for MarkdownExporter {
+    fn vet(&self, r: &VetReport, w: &mut dyn Write) -> io::Result<()> {
+        markdown::write(&doc::vet_doc(r), w)
+    }
+    fn inspect(&self, r: &InspectReport, w: &mut dyn Write) -> io::Result<()> {
+        markdown::write(&doc::inspect_doc(r), w)
+    }
+}
+
+impl Exporter for LatexExporter {
+    fn vet(&self, r: &VetReport, w: &mut dyn Write) -> io::Result<()> {
+        latex::write(&doc::vet_doc(r), w)
+    }
+    fn inspect(&self, r: &InspectReport, w: &mut dyn Write) -> io::Result<()> {
+        latex::write(&doc::inspect_doc(r), w)
+    }
+}
+
+impl Exporter for CsvExporter {
+    fn vet(&self, r: &VetReport, w: &mut dyn Write) -> io::Result<()> {
+        csv::vet(r, w)
+    }
+    fn inspect(&self, r: &InspectReport, w: &mut dyn Write) -> io::Result<()> {
+        csv::inspect(r, w)
+    }
+}
+
+impl Exporter for JsonExporter {
+    fn vet(&self, r: &VetReport, w: &mut dyn Write) -> io::Result<()> {
+        json::write_value(&json::vet_value(r), w)
+    }
+    fn inspect(&self, r: &InspectReport, w: &mut dyn Write) -> io::Result<()> {
+        json::write_value(&json::inspect_value(r), w)
+    }
+}
+
+/// The exporter of a format; `color` only affects text.
+pub fn exporter(format: Format, color: bool) -> Box<dyn Exporter> {
+    match format {
+        Format::Text => Box::new(TextExporter { color }),
+        Format::Markdown => Box::new(MarkdownExporter),
+        Format::Latex => Box::new(LatexExporter),
+        Format::Csv => Box::new(CsvExporter),
+        Format::Json => Box::new(JsonExporter),
+    }
+}
