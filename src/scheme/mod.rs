@@ -27,3 +27,26 @@ pub fn parse(text: &str, file_name: &str) -> Result<Model, SchemeError> {
         file: file_name.to_string(),
     })
 }
+
+pub fn parse_with_overrides(
+    text: &str,
+    file_name: &str,
+    overrides: &[(String, String)],
+) -> Result<Model, SchemeError> {
+    let _ = (text, overrides);
+    Err(SchemeError {
+        file: file_name.to_string(),
+    })
+}
+
+/// The number and unit written at a dot path, e.g. (-20.0, "MHz").
+pub fn numeric_value_at(
+    text: &str,
+    file_name: &str,
+    path: &str,
+) -> Result<(f64, String), SchemeError> {
+    let _ = (text, path);
+    Err(SchemeError {
+        file: file_name.to_string(),
+    })
+}
