@@ -1,0 +1,176 @@
+//! The binary end to end: every demo scheme through every command and
+//! format, exit statuses, and files written whole or not at all.
+
+use std::path::{Path, PathBuf};
+use std::process::{Command, Output};
+
+fn bin() -> Command {
+    Command::new(env!("CARGO_BIN_EXE_levelplan"))
+}
+
+fn run(args: &[&str]) -> Output {
+    bin().args(args).output().expect("the binary runs")
+}
+
+fn demos() -> Vec<PathBuf> {
+    let mut v: Vec<PathBuf> = std::fs::read_dir(Path::new(env!("CARGO_MANIFEST_DIR")).join("level_schemes"))
+        .expect("level_schemes/ exists")
+        .filter_map(|e| e.ok().map(|e| e.path()))
+        .filter(|p| p.extension().is_some_and(|x| x == "yaml"))
+        .collect();
+    v.sort();
+    v
+}
+
+fn scratch(name: &str) -> PathBuf {
+    let d = std::env::temp_dir().join(format!("levelplan-cli-{}-{name}", std::process::id()));
+    std::fs::create_dir_all(&d).unwrap();
+    d
+}
+
+#[test]
+fn there_are_at_least_four_demos() {
+    assert!(demos().len() >= 4, "found {:?}", demos());
+}
+
+#[test]
+fn inspect_every_demo_in_every_format() {
+    for demo in demos() {
+        let d = demo.to_str().unwrap();
+        for fmt in ["text", "markdown", "latex", "csv", "json"] {
+            let out = run(&["inspect", d, "--format", fmt]);
+            assert_eq!(out.status.code(), Some(0), "{d} {fmt}: {}", String::from_utf8_lossy(&out.stderr));
+            let s = String::from_utf8(out.stdout).unwrap();
+            assert!(!s.is_empty());
+            assert!(!s.contains("NaN") && !s.contains("inf"), "{d} {fmt}");
+        }
+        let out = run(&["inspect", d, "--format", "json"]);
+        let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+        for l in v["levels"].as_array().unwrap() {
+            assert!(l["id"].is_string() && l["energy_hz"].is_number());
+        }
+        for dr in v["drives"].as_array().unwrap() {
+            for k in ["field", "lower", "upper", "transition_hz", "detuning_mhz", "rabi_mhz", "included"] {
+                assert!(!dr[k].is_null(), "{d}: drive key {k} missing");
+            }
+        }
+    }
+}
+
+#[test]
+fn vet_every_demo_in_every_format() {
+    for demo in demos() {
+        let d = demo.to_str().unwrap();
+        let mut codes = Vec::new();
+        for fmt in ["text", "markdown", "latex", "csv", "json"] {
+            let out = run(&["vet", d, "--format", fmt]);
+            let code = out.status.code();
+            assert!(matches!(code, Some(0) | Some(3)), "{d} {fmt}: {:?} {}", code, String::from_utf8_lossy(&out.stderr));
+            codes.push(code);
+            let s = String::from_utf8(out.stdout).unwrap();
+            assert!(!s.contains("NaN"), "{d} {fmt}");
+            assert!(s.contains("levelplan"), "{d} {fmt}: provenance missing");
+        }
+        assert!(codes.windows(2).all(|w| w[0] == w[1]), "{d}: exit status depends on the format");
+        let out = run(&["vet", d, "--format", "json"]);
+        let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+        for k in ["tolerance", "norm_error", "lost_population", "levels"] {
+            assert!(!v[k].is_null(), "{d}: key {k}");
+        }
+        let mut flagged = 0;
+        for l in v["levels"].as_array().unwrap() {
+            for k in ["id", "role", "final_population", "peak_population", "flagged", "sources"] {
+                assert!(!l[k].is_null(), "{d}: level key {k}");
+            }
+            let role = l["role"].as_str().unwrap();
+            assert!(["initial", "target", "spectator"].contains(&role));
+            if role == "initial" {
+                assert!(l["first_order_population"].is_null());
+            } else {
+                assert!(l["first_order_population"].is_number());
+            }
+            if l["flagged"].as_bool().unwrap() {
+                flagged += 1;
+                assert_eq!(role, "spectator");
+                let tol = l["tolerance"].as_f64().unwrap();
+                assert!(l["final_population"].as_f64().unwrap() > tol);
+            }
+        }
+        assert_eq!(codes[0], Some(if flagged > 0 { 3 } else { 0 }), "{d}");
+    }
+}
+
+#[test]
+fn missing_scheme_is_bad_input_and_writes_nothing() {
+    let dir = scratch("missing");
+    let target = dir.join("report.md");
+    let out = run(&["vet", "no/such/scheme.yaml", "--format", "markdown", "--out", target.to_str().unwrap()]);
+    assert_eq!(out.status.code(), Some(2));
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert!(err.contains("no/such/scheme.yaml"), "{err}");
+    assert!(!target.exists());
+}
+
+#[test]
+fn bad_option_values_are_bad_input() {
+    let demo = demos()[0].clone();
+    let out = run(&["vet", demo.to_str().unwrap(), "--tolerance", "-1"]);
+    assert_eq!(out.status.code(), Some(2));
+    let out = run(&["vet", demo.to_str().unwrap(), "--format", "docx"]);
+    assert_eq!(out.status.code(), Some(2));
+    let out = run(&["evolve", demo.to_str().unwrap(), "--samples", "1"]);
+    assert_eq!(out.status.code(), Some(2));
+}
+
+#[test]
+fn vet_out_file_matches_stdout() {
+    let demo = demos()[0].clone();
+    let dir = scratch("out");
+    let target = dir.join("table.tex");
+    let a = run(&["vet", demo.to_str().unwrap(), "--format", "latex", "--out", target.to_str().unwrap()]);
+    assert!(matches!(a.status.code(), Some(0) | Some(3)));
+    assert!(a.stdout.is_empty());
+    let b = run(&["vet", demo.to_str().unwrap(), "--format", "latex"]);
+    assert_eq!(std::fs::read(&target).unwrap(), b.stdout);
+    let s = String::from_utf8(b.stdout).unwrap();
+    assert!(s.contains("\\toprule") && s.contains("\\bottomrule"));
+}
+
+#[test]
+fn evolve_ends_exactly_at_the_window_end_with_the_vet_populations() {
+    for demo in demos() {
+        let d = demo.to_str().unwrap();
+        let dir = scratch("evolve");
+        let csv = dir.join("run.csv");
+        let svg = dir.join("run.svg");
+        let out = run(&["evolve", d, "--samples", "51", "--out", csv.to_str().unwrap(), "--plot", svg.to_str().unwrap(), "--log"]);
+        assert_eq!(out.status.code(), Some(0), "{d}: {}", String::from_utf8_lossy(&out.stderr));
+        let text = std::fs::read_to_string(&csv).unwrap();
+        let rows: Vec<&str> = text.lines().filter(|l| !l.starts_with('#')).collect();
+        assert!(rows[0].starts_with("time_s,"));
+        assert_eq!(rows.len(), 52);
+        let svg_text = std::fs::read_to_string(&svg).unwrap();
+        assert!(svg_text.starts_with("<svg") && svg_text.contains("tolerance"));
+
+        let insp: serde_json::Value = serde_json::from_slice(&run(&["inspect", d, "--format", "json"]).stdout).unwrap();
+        let end = insp["window_s"][1].as_f64().unwrap();
+        let last: Vec<f64> = rows[51].split(',').map(|x| x.parse().unwrap()).collect();
+        assert_eq!(last[0], end, "{d}: last row is not the window end");
+
+        let vet: serde_json::Value = serde_json::from_slice(&run(&["vet", d, "--format", "json"]).stdout).unwrap();
+        for (k, l) in vet["levels"].as_array().unwrap().iter().enumerate() {
+            let p = l["final_population"].as_f64().unwrap();
+            assert!((p - last[k + 1]).abs() < 1e-7, "{d}: level {k}: vet {p} vs evolve {}", last[k + 1]);
+        }
+    }
+}
+
+#[test]
+fn help_lists_exit_statuses_and_safety() {
+    let out = run(&["vet", "--help"]);
+    let s = String::from_utf8(out.stdout).unwrap();
+    assert!(s.contains("Exit status") && s.contains("Example"));
+    let out = run(&["--help"]);
+    let s = String::from_utf8(out.stdout).unwrap();
+    assert!(s.contains("IEC 60825-1"));
+}
