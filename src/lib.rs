@@ -12,3 +12,4 @@ pub mod model;
 pub mod scheme;
 pub mod solve;
 pub mod units;
+pub mod yaml;

@@ -13,7 +13,7 @@ pub const HBAR: f64 = H / (2.0 * PI);
 /// Speed of light in vacuum c (m/s), exact.
 pub const C: f64 = 299_792_458.0;
 /// Vacuum permittivity eps0 (F/m), CODATA 2018: 8.8541878128(13)e-12.
-pub const EPS0: f64 = 8.854_187_8128e-12;
+pub const EPS0: f64 = 8.854_187_812_8e-12;
 /// Elementary charge e (C), exact.
 pub const E_CHARGE: f64 = 1.602_176_634e-19;
 /// Bohr radius a0 (m), CODATA 2018: 5.29177210903(80)e-11.
@@ -390,6 +390,31 @@ impl Kind {
         }
     }
 
+    /// The bare noun: "energy", "time", ... for phrases like "a positive time".
+    pub fn noun(self) -> &'static str {
+        match self {
+            Kind::Energy => "energy",
+            Kind::Time => "time",
+            Kind::Frequency | Kind::Carrier => "frequency",
+            Kind::Length => "length",
+            Kind::Dipole => "dipole moment",
+            Kind::Rate => "rate",
+            Kind::Intensity => "intensity",
+            Kind::Power => "power",
+            Kind::Chirp => "chirp rate",
+            Kind::Angle => "angle",
+        }
+    }
+
+    /// "(s, ms, us, ns, ps, fs)": the accepted units in parentheses.
+    pub fn unit_list(self) -> String {
+        let mut units = self.units().join(", ");
+        if self.bare_allowed() {
+            units.push_str(", or a bare number of radians");
+        }
+        format!("({units})")
+    }
+
     /// Canonical spellings of the accepted units, in the order they are listed.
     pub fn units(self) -> Vec<&'static str> {
         self.table()
@@ -405,11 +430,7 @@ impl Kind {
 
     /// "an energy (cm^-1, eV, meV, Hz, kHz, MHz, GHz, THz, J)".
     pub fn expected(self) -> String {
-        let mut units = self.units().join(", ");
-        if self.bare_allowed() {
-            units.push_str(", or a bare number of radians");
-        }
-        format!("{} ({})", self.description(), units)
+        format!("{} {}", self.description(), self.unit_list())
     }
 
     /// Factor to SI of a unit spelling, if this kind accepts it.
