@@ -179,6 +179,10 @@ impl<'a> Ctx<'a> {
         let text = s.text();
         let r = match s {
             Scalar::Num(x) if x.is_finite() => Ok(*x),
+            Scalar::Num(_) => Err(units::UnitError {
+                expected: format!("{what} (a bare number)"),
+                found: format!("'{text}' (not a finite number)"),
+            }),
             Scalar::Bool(_) => Err(units::UnitError {
                 expected: format!("{what} (a bare number)"),
                 found: format!("'{text}' (a boolean)"),
