@@ -19,3 +19,4 @@ pub mod report;
 pub mod scheme;
 pub mod solve;
 pub mod units;
+pub mod yaml;

@@ -1,0 +1,278 @@
+//! The serde mirror of a scheme file: the YAML shape, nothing more.
+//!
+//! Owns: the key names (unknown keys are refused through
+//! `deny_unknown_fields`), the order of maps as written, and the raw scalar
+//! text of every value. Must not: interpret units, check ranges or look up
+//! ids; that is `validate`'s job, which collects every problem at once. So
+//! almost every key is optional here and scalars are kept as written.
+
+use serde::de::{self, Deserializer, MapAccess, Visitor};
+use serde::Deserialize;
+use std::fmt;
+
+/// A scalar as written: a string, a number or a boolean.
+#[derive(Debug, Clone, PartialEq)]
+pub enum Scalar {
+    Str(String),
+    Num(f64),
+    Bool(bool),
+}
+
+impl Scalar {
+    /// The value as text, for messages and for unit parsing.
+    pub fn text(&self) -> String {
+        match self {
+            Scalar::Str(s) => s.clone(),
+            Scalar::Num(x) => format_number(*x),
+            Scalar::Bool(b) => b.to_string(),
+        }
+    }
+}
+
+/// A number printed compactly: plain for ordinary magnitudes, exponent form
+/// for very small or very large ones.
+pub fn format_number(x: f64) -> String {
+    let a = x.abs();
+    if a == 0.0 || (1e-4..1e7).contains(&a) || !x.is_finite() {
+        format!("{x}")
+    } else {
+        format!("{x:e}")
+    }
+}
+
+impl<'de> Deserialize<'de> for Scalar {
+    fn deserialize<D: Deserializer<'de>>(d: D) -> Result<Self, D::Error> {
+        struct V;
+        impl Visitor<'_> for V {
+            type Value = Scalar;
+            fn expecting(&self, f: &mut fmt::Formatter) -> fmt::Result {
+                f.write_str("a single value (a number, or a string such as \"5 MHz\")")
+            }
+            fn visit_bool<E: de::Error>(self, v: bool) -> Result<Scalar, E> {
+                Ok(Scalar::Bool(v))
+            }
+            fn visit_i64<E: de::Error>(self, v: i64) -> Result<Scalar, E> {
+                Ok(Scalar::Num(v as f64))
+            }
+            fn visit_u64<E: de::Error>(self, v: u64) -> Result<Scalar, E> {
+                Ok(Scalar::Num(v as f64))
+            }
+            fn visit_i128<E: de::Error>(self, v: i128) -> Result<Scalar, E> {
+                Ok(Scalar::Num(v as f64))
+            }
+            fn visit_u128<E: de::Error>(self, v: u128) -> Result<Scalar, E> {
+                Ok(Scalar::Num(v as f64))
+            }
+            fn visit_f64<E: de::Error>(self, v: f64) -> Result<Scalar, E> {
+                Ok(Scalar::Num(v))
+            }
+            fn visit_str<E: de::Error>(self, v: &str) -> Result<Scalar, E> {
+                Ok(Scalar::Str(v.to_string()))
+            }
+        }
+        d.deserialize_any(V)
+    }
+}
+
+/// An id (level or field) as written. Plain numbers are accepted and read as
+/// their text, so `levels: {1: ...}` and `initial: 1` agree.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct Id(pub String);
+
+impl<'de> Deserialize<'de> for Id {
+    fn deserialize<D: Deserializer<'de>>(d: D) -> Result<Self, D::Error> {
+        struct V;
+        impl Visitor<'_> for V {
+            type Value = Id;
+            fn expecting(&self, f: &mut fmt::Formatter) -> fmt::Result {
+                f.write_str("an id")
+            }
+            fn visit_bool<E: de::Error>(self, v: bool) -> Result<Id, E> {
+                Ok(Id(v.to_string()))
+            }
+            fn visit_i64<E: de::Error>(self, v: i64) -> Result<Id, E> {
+                Ok(Id(v.to_string()))
+            }
+            fn visit_u64<E: de::Error>(self, v: u64) -> Result<Id, E> {
+                Ok(Id(v.to_string()))
+            }
+            fn visit_f64<E: de::Error>(self, v: f64) -> Result<Id, E> {
+                Ok(Id(v.to_string()))
+            }
+            fn visit_str<E: de::Error>(self, v: &str) -> Result<Id, E> {
+                Ok(Id(v.to_string()))
+            }
+        }
+        d.deserialize_any(V)
+    }
+}
+
+/// A map kept in file order, duplicates kept (the validator reports them).
+#[derive(Debug, Clone, PartialEq)]
+pub struct Ordered<T>(pub Vec<(Id, T)>);
+
+impl<T> Default for Ordered<T> {
+    fn default() -> Self {
+        Ordered(Vec::new())
+    }
+}
+
+impl<'de, T: Deserialize<'de>> Deserialize<'de> for Ordered<T> {
+    fn deserialize<D: Deserializer<'de>>(d: D) -> Result<Self, D::Error> {
+        struct V<T>(std::marker::PhantomData<T>);
+        impl<'de, T: Deserialize<'de>> Visitor<'de> for V<T> {
+            type Value = Ordered<T>;
+            fn expecting(&self, f: &mut fmt::Formatter) -> fmt::Result {
+                f.write_str("a map of id: entry")
+            }
+            fn visit_map<A: MapAccess<'de>>(self, mut m: A) -> Result<Ordered<T>, A::Error> {
+                let mut out = Vec::new();
+                while let Some(k) = m.next_key::<Id>()? {
+                    let v = m.next_value::<T>()?;
+                    out.push((k, v));
+                }
+                Ok(Ordered(out))
+            }
+        }
+        d.deserialize_map(V(std::marker::PhantomData))
+    }
+}
+
+/// `initial:` either one level id or a map id -> population.
+#[derive(Debug, Clone, PartialEq)]
+pub enum Initial {
+    One(Id),
+    Map(Ordered<Option<Scalar>>),
+}
+
+impl<'de> Deserialize<'de> for Initial {
+    fn deserialize<D: Deserializer<'de>>(d: D) -> Result<Self, D::Error> {
+        struct V;
+        impl<'de> Visitor<'de> for V {
+            type Value = Initial;
+            fn expecting(&self, f: &mut fmt::Formatter) -> fmt::Result {
+                f.write_str("a level id, or a map of level id: population")
+            }
+            fn visit_bool<E: de::Error>(self, v: bool) -> Result<Initial, E> {
+                Ok(Initial::One(Id(v.to_string())))
+            }
+            fn visit_i64<E: de::Error>(self, v: i64) -> Result<Initial, E> {
+                Ok(Initial::One(Id(v.to_string())))
+            }
+            fn visit_u64<E: de::Error>(self, v: u64) -> Result<Initial, E> {
+                Ok(Initial::One(Id(v.to_string())))
+            }
+            fn visit_f64<E: de::Error>(self, v: f64) -> Result<Initial, E> {
+                Ok(Initial::One(Id(v.to_string())))
+            }
+            fn visit_str<E: de::Error>(self, v: &str) -> Result<Initial, E> {
+                Ok(Initial::One(Id(v.to_string())))
+            }
+            fn visit_map<A: MapAccess<'de>>(self, mut m: A) -> Result<Initial, A::Error> {
+                let mut out = Vec::new();
+                while let Some(k) = m.next_key::<Id>()? {
+                    let v = m.next_value::<Option<Scalar>>()?;
+                    out.push((k, v));
+                }
+                Ok(Initial::Map(Ordered(out)))
+            }
+        }
+        d.deserialize_any(V)
+    }
+}
+
+/// The whole file.
+#[derive(Debug, Clone, Default, Deserialize)]
+#[serde(deny_unknown_fields, rename = "scheme")]
+pub struct RawScheme {
+    pub title: Option<Scalar>,
+    pub levels: Option<Ordered<Option<RawLevel>>>,
+    pub initial: Option<Initial>,
+    pub targets: Option<Vec<Id>>,
+    pub tolerance: Option<Scalar>,
+    pub couplings: Option<Vec<RawCoupling>>,
+    pub fields: Option<Ordered<Option<RawField>>>,
+    pub window: Option<RawWindow>,
+    pub solver: Option<RawSolver>,
+}
+
+#[derive(Debug, Clone, Default, Deserialize)]
+#[serde(deny_unknown_fields, rename = "level")]
+pub struct RawLevel {
+    pub energy: Option<Scalar>,
+    pub lifetime: Option<Scalar>,
+    pub linewidth: Option<Scalar>,
+    pub tolerance: Option<Scalar>,
+    pub label: Option<Scalar>,
+}
+
+#[derive(Debug, Clone, Default, Deserialize)]
+#[serde(deny_unknown_fields, rename = "coupling")]
+pub struct RawCoupling {
+    pub between: Option<Vec<Id>>,
+    pub dipole: Option<Scalar>,
+    pub einstein_a: Option<Scalar>,
+    pub g_lower: Option<Scalar>,
+    pub g_upper: Option<Scalar>,
+    pub fields: Option<Vec<Id>>,
+}
+
+#[derive(Debug, Clone, Default, Deserialize)]
+#[serde(deny_unknown_fields, rename = "field")]
+pub struct RawField {
+    pub frequency: Option<Scalar>,
+    pub wavelength: Option<Scalar>,
+    pub tuned: Option<RawTuned>,
+    pub intensity: Option<Scalar>,
+    pub power: Option<Scalar>,
+    pub waist: Option<Scalar>,
+    pub rabi: Option<RawOnValue>,
+    pub area: Option<RawOnValue>,
+    pub envelope: Option<RawEnvelope>,
+    pub chirp: Option<Scalar>,
+    pub phase: Option<Scalar>,
+    pub rwa: Option<bool>,
+}
+
+#[derive(Debug, Clone, Default, Deserialize)]
+#[serde(deny_unknown_fields, rename = "tuned")]
+pub struct RawTuned {
+    pub to: Option<Vec<Id>>,
+    pub detuning: Option<Scalar>,
+}
+
+#[derive(Debug, Clone, Default, Deserialize)]
+#[serde(deny_unknown_fields, rename = "strength")]
+pub struct RawOnValue {
+    pub on: Option<Vec<Id>>,
+    pub value: Option<Scalar>,
+}
+
+#[derive(Debug, Clone, Default, Deserialize)]
+#[serde(deny_unknown_fields, rename = "envelope")]
+pub struct RawEnvelope {
+    pub shape: Option<Scalar>,
+    pub start: Option<Scalar>,
+    pub duration: Option<Scalar>,
+    pub center: Option<Scalar>,
+    pub fwhm: Option<Scalar>,
+    pub sigma: Option<Scalar>,
+    pub tau: Option<Scalar>,
+    pub points: Option<Vec<Vec<Option<Scalar>>>>,
+}
+
+#[derive(Debug, Clone, Default, Deserialize)]
+#[serde(deny_unknown_fields, rename = "window")]
+pub struct RawWindow {
+    pub start: Option<Scalar>,
+    pub end: Option<Scalar>,
+}
+
+#[derive(Debug, Clone, Default, Deserialize)]
+#[serde(deny_unknown_fields, rename = "solver")]
+pub struct RawSolver {
+    pub rtol: Option<Scalar>,
+    pub atol: Option<Scalar>,
+    pub method: Option<Scalar>,
+    pub detuning_cutoff: Option<Scalar>,
+}
