@@ -1014,7 +1014,7 @@ pub(crate) fn validate(raw: &RawScheme, ctx: &mut Ctx) -> Option<Model> {
             })
         })
         .collect::<Option<Vec<_>>>()?;
-    Some(Model {
+    let model = Model {
         title: raw.title.as_ref().map(|t| t.text()),
         levels,
         couplings,
@@ -1025,7 +1025,52 @@ pub(crate) fn validate(raw: &RawScheme, ctx: &mut Ctx) -> Option<Model> {
         tolerance,
         window,
         solver,
-    })
+    };
+    check_finite(ctx, &model);
+    ctx.diags.is_empty().then_some(model)
+}
+
+/// Extreme but finite inputs (a wavelength of 1e-300 m, a lifetime of
+/// 1e-320 s) can overflow in derived numbers. No later stage may see a
+/// non-finite number, so refuse them here, naming where they arose.
+fn check_finite(ctx: &mut Ctx, m: &Model) {
+    let root = KeyPath::root();
+    let bad = "an out-of-range value (a derived number overflows)";
+    let want = "values whose derived numbers stay finite";
+    for l in &m.levels {
+        if !(l.omega.is_finite() && l.gamma.is_finite()) {
+            ctx.push(&root.k("levels").k(&l.id), want, bad);
+        }
+    }
+    for (i, c) in m.couplings.iter().enumerate() {
+        if !c.dipole.value().is_finite() {
+            ctx.push(&root.k("couplings").i(i), want, bad);
+        }
+    }
+    for f in &m.fields {
+        let env = &f.envelope;
+        let (a, b) = env.support();
+        let env_ok =
+            a.is_finite() && b.is_finite() && env.area().is_finite() && env.center().is_finite();
+        let ok = f.omega.is_finite()
+            && f.chirp.is_finite()
+            && f.phase.is_finite()
+            && f.peak_intensity.map_or(true, |x| x.is_finite());
+        if !env_ok {
+            ctx.push(&root.k("fields").k(&f.id).k("envelope"), want, bad);
+        } else if !ok {
+            ctx.push(&root.k("fields").k(&f.id), want, bad);
+        }
+    }
+    for d in &m.drives {
+        if !(d.rabi.is_finite() && m.detuning(d).is_finite()) {
+            ctx.push(&root.k("fields").k(&m.fields[d.field].id), want, bad);
+        }
+    }
+    if !(m.window.start.is_finite() && m.window.end.is_finite() && m.window.duration().is_finite())
+    {
+        ctx.push(&root.k("window"), want, bad);
+    }
 }
 
 type PairFn<'p> = dyn Fn(&mut Ctx, &KeyPath, &Option<Vec<Id>>, &str) -> Option<(usize, usize)> + 'p;
