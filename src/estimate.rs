@@ -99,11 +99,7 @@ pub fn estimate(model: &Model) -> Result<Estimate, EstimateError> {
 }
 
 /// Remedy for a leak into `level` at `tolerance`.
-pub fn remedy(
-    model: &Model,
-    level: usize,
-    tolerance: f64,
-) -> Result<Option<Remedy>, EstimateError> {
+pub fn remedy(model: &Model, level: usize, tolerance: f64) -> Result<Option<Remedy>, EstimateError> {
     let _ = (model, level, tolerance);
     Ok(None)
 }

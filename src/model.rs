@@ -308,7 +308,9 @@ impl Envelope {
             Envelope::Rectangular { duration, .. } => *duration,
             Envelope::Gaussian { sigma, .. } => *sigma,
             Envelope::Sech { tau, .. } => *tau,
-            Envelope::Sin2 { duration, .. } | Envelope::Blackman { duration, .. } => duration / 4.0,
+            Envelope::Sin2 { duration, .. } | Envelope::Blackman { duration, .. } => {
+                duration / 4.0
+            }
             Envelope::Samples { times, .. } => times
                 .windows(2)
                 .map(|w| w[1] - w[0])
@@ -420,26 +422,11 @@ mod tests {
     #[test]
     fn areas_match_quadrature() {
         let shapes = [
-            Envelope::Gaussian {
-                center: 3.0,
-                sigma: 0.7,
-            },
-            Envelope::Sech {
-                center: -2.0,
-                tau: 0.3,
-            },
-            Envelope::Sin2 {
-                start: 1.0,
-                duration: 2.0,
-            },
-            Envelope::Blackman {
-                start: 0.5,
-                duration: 3.0,
-            },
-            Envelope::Samples {
-                times: vec![0.0, 1.0, 3.0],
-                values: vec![0.0, 1.0, 0.5],
-            },
+            Envelope::Gaussian { center: 3.0, sigma: 0.7 },
+            Envelope::Sech { center: -2.0, tau: 0.3 },
+            Envelope::Sin2 { start: 1.0, duration: 2.0 },
+            Envelope::Blackman { start: 0.5, duration: 3.0 },
+            Envelope::Samples { times: vec![0.0, 1.0, 3.0], values: vec![0.0, 1.0, 0.5] },
         ];
         for e in &shapes {
             assert_relative_eq!(e.area(), integrate(e), max_relative = 1e-6);
@@ -457,10 +444,7 @@ mod tests {
 
     #[test]
     fn sech_is_stable_far_out() {
-        let e = Envelope::Sech {
-            center: 0.0,
-            tau: 1.0,
-        };
+        let e = Envelope::Sech { center: 0.0, tau: 1.0 };
         assert_relative_eq!(e.value(0.0), 1.0);
         assert!(e.value(1000.0).is_finite());
         assert!(e.value(e.support().1) < 1.01 * TAIL_CUTOFF);

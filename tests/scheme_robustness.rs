@@ -161,3 +161,29 @@ fn aliases_may_repeat_an_envelope() {
     let m = scheme::parse(text, "x").unwrap();
     assert_eq!(m.fields[0].envelope, m.fields[1].envelope);
 }
+
+#[test]
+fn many_problems_are_capped_and_fast() {
+    let mut text = String::from(
+        "levels:\n  g: {energy: 0 eV}\n  e: {energy: 1 eV}\ninitial: g\n\
+         couplings:\n  - {between: [g, e], dipole: 1}\n\
+         fields:\n  L:\n    frequency: 241 THz\n    rabi: {on: [g, e], value: 1 MHz}\n\
+         \x20   envelope:\n      shape: samples\n      points:\n",
+    );
+    let n = 40_000;
+    for k in 0..n {
+        text.push_str(&format!("        - [{k} ns, -1]\n"));
+    }
+    assert!(text.len() < levelplan::yaml::MAX_FILE_BYTES);
+    let t = std::time::Instant::now();
+    let e = scheme::parse(&text, "x").unwrap_err();
+    let dt = t.elapsed().as_secs_f64();
+    assert_eq!(e.diagnostics.len(), scheme::MAX_DIAGNOSTICS + 1);
+    let last = e.diagnostics.last().unwrap();
+    assert_eq!(
+        last.found,
+        format!("{} more problems, not shown", n - scheme::MAX_DIAGNOSTICS)
+    );
+    assert_eq!(e.diagnostics[0].line, Some(14));
+    assert!(dt < 5.0, "took {dt} s");
+}

@@ -9,8 +9,8 @@
 use super::locate::{KeyPath, Locator};
 use super::raw::{Id, Initial, RawEnvelope, RawField, RawScheme, Scalar};
 use super::{
-    Diagnostic, MAX_COUPLINGS, MAX_DRIVES, MAX_FIELDS, MAX_LEVELS, MAX_SAMPLE_POINTS,
-    POPULATION_SUM_TOLERANCE,
+    Diagnostic, MAX_COUPLINGS, MAX_DIAGNOSTICS, MAX_DRIVES, MAX_FIELDS, MAX_LEVELS,
+    MAX_SAMPLE_POINTS, POPULATION_SUM_TOLERANCE,
 };
 use crate::model::{
     gaussian_sigma_from_intensity_fwhm, Coupling, Dipole, Drive, Envelope, Field, Level, Method,
@@ -25,6 +25,8 @@ pub(crate) struct Ctx<'a> {
     pub(crate) diags: Vec<Diagnostic>,
     /// Rendered key paths whose values came from overrides.
     overridden: Vec<String>,
+    /// Problems found beyond [`MAX_DIAGNOSTICS`], counted but not listed.
+    pub(crate) suppressed: usize,
 }
 
 /// Sign rule for a quantity.
@@ -41,6 +43,7 @@ impl<'a> Ctx<'a> {
             loc: Locator::new(text),
             diags: Vec::new(),
             overridden,
+            suppressed: 0,
         }
     }
 
@@ -51,6 +54,10 @@ impl<'a> Ctx<'a> {
         expected: impl Into<String>,
         found: impl Into<String>,
     ) {
+        if self.diags.len() >= MAX_DIAGNOSTICS {
+            self.suppressed += 1;
+            return;
+        }
         let p = path.to_string();
         let mut found = found.into();
         if self.overridden.contains(&p) {
@@ -66,6 +73,12 @@ impl<'a> Ctx<'a> {
     }
 
     fn push(&mut self, path: &KeyPath, expected: impl Into<String>, found: impl Into<String>) {
+        if self.diags.len() >= MAX_DIAGNOSTICS {
+            // Locating costs a pass over the text; do not pay it for
+            // messages that will not be shown.
+            self.suppressed += 1;
+            return;
+        }
         let pos = self.loc.locate(path);
         self.push_at(path, pos, expected, found);
     }
