@@ -262,7 +262,7 @@ fn validate_raw(
                     "an incomplete scheme",
                 ));
             }
-            diags.sort_by_key(|d| d.line.unwrap_or(usize::MAX));
+            diags.sort_by_key(|d| (d.line.unwrap_or(usize::MAX), d.column.unwrap_or(0)));
             if suppressed > 0 {
                 diags.push(Diagnostic::whole_file(
                     format!("at most {MAX_DIAGNOSTICS} problems listed"),

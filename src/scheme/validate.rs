@@ -226,6 +226,13 @@ pub fn valid_id(id: &str) -> bool {
 
 const ID_RULE: &str = "an id made of letters, digits, _ ' + or -";
 
+/// A population sum for messages: 12 significant digits, so that 0.7 + 0.2
+/// reads 0.9 while a miss of 1e-9 still shows.
+fn sum_text(x: f64) -> String {
+    let s = format!("{x:.12}");
+    s.trim_end_matches('0').trim_end_matches('.').to_string()
+}
+
 /// A short list of ids for messages.
 fn id_list(ids: &[String]) -> String {
     const MAX: usize = 12;
@@ -398,15 +405,15 @@ pub(crate) fn validate(raw: &RawScheme, ctx: &mut Ctx) -> Option<Model> {
         }
     };
     // A pair [a, b] of two distinct known levels.
-    let pair = |ctx: &mut Ctx, path: &KeyPath, ids: &Option<Vec<Id>>, what: &str| {
+    let pair = |ctx: &mut Ctx, path: &KeyPath, ids: &Option<Vec<Id>>| {
         let Some(ids) = ids else {
-            ctx.missing(path, format!("{what}: a pair of level ids [a, b]"));
+            ctx.missing(path, "a pair of level ids [a, b]");
             return None;
         };
         if ids.len() != 2 {
             ctx.push(
                 path,
-                format!("{what}: a pair of level ids [a, b]"),
+                "a pair of level ids [a, b]",
                 format!("a list of {} ids", ids.len()),
             );
             return None;
@@ -417,7 +424,7 @@ pub(crate) fn validate(raw: &RawScheme, ctx: &mut Ctx) -> Option<Model> {
         if a == b {
             ctx.push(
                 path,
-                format!("{what}: two different levels"),
+                "two different levels",
                 format!("[{0}, {0}] (the same level twice)", ids[0].0),
             );
             return None;
@@ -482,7 +489,7 @@ pub(crate) fn validate(raw: &RawScheme, ctx: &mut Ctx) -> Option<Model> {
     let mut couplings: Vec<Option<CouplingInfo>> = Vec::new();
     for (ci, rc) in raw_couplings.iter().enumerate() {
         let path = cp.i(ci);
-        let pr = pair(ctx, &path.k("between"), &rc.between, "between");
+        let pr = pair(ctx, &path.k("between"), &rc.between);
         let (lower, upper) = match pr {
             Some((a, b)) => {
                 // Lower energy first; equal energies keep the file order of levels.
@@ -867,7 +874,7 @@ pub(crate) fn validate(raw: &RawScheme, ctx: &mut Ctx) -> Option<Model> {
                 ctx.push(
                     &ip,
                     "initial populations summing to 1 (within 1e-9)",
-                    format!("a sum of {}", super::raw::format_number(sum)),
+                    format!("a sum of {}", sum_text(sum)),
                 );
             }
         }
@@ -1086,7 +1093,7 @@ fn check_finite(ctx: &mut Ctx, m: &Model) {
     }
 }
 
-type PairFn<'p> = dyn Fn(&mut Ctx, &KeyPath, &Option<Vec<Id>>, &str) -> Option<(usize, usize)> + 'p;
+type PairFn<'p> = dyn Fn(&mut Ctx, &KeyPath, &Option<Vec<Id>>) -> Option<(usize, usize)> + 'p;
 
 /// What a field's validation needs to know of levels and couplings.
 #[derive(Clone, Copy)]
@@ -1145,7 +1152,7 @@ fn validate_field(
                     .map(units::omega_from_wavelength);
             } else if let Some(t) = &f.tuned {
                 let tp = path.k("tuned");
-                let pr = pair(ctx, &tp.k("to"), &t.to, "to");
+                let pr = pair(ctx, &tp.k("to"), &t.to);
                 let det =
                     ctx.req_quantity(&tp.k("detuning"), &t.detuning, Kind::Frequency, Sign::Any);
                 if let Some((a, b)) = pr {
@@ -1251,7 +1258,7 @@ fn validate_field(
                 let ov = if key == "rabi" { &f.rabi } else { &f.area };
                 if let Some(ov) = ov {
                     let kp = path.k(key);
-                    let pr = pair(ctx, &kp.k("on"), &ov.on, "on");
+                    let pr = pair(ctx, &kp.k("on"), &ov.on);
                     let v = if key == "rabi" {
                         ctx.req_quantity(&kp.k("value"), &ov.value, Kind::Frequency, Sign::Any)
                     } else {
