@@ -205,3 +205,17 @@ fn lambda_variant_without_field_lists_drives_both_legs() {
     assert_eq!(dets, vec![-2000.0, 3100.0, -7100.0, -2000.0]);
     assert!(m.drives.iter().all(|d| m.drive_included(d)));
 }
+
+#[test]
+fn complete_example_in_the_format_reference_parses() {
+    let doc = std::fs::read_to_string(
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("docs/scheme-format.md"),
+    )
+    .unwrap();
+    let start = doc.find("```yaml\n").unwrap() + "```yaml\n".len();
+    let end = start + doc[start..].find("```").unwrap();
+    let m = scheme::parse(&doc[start..end], "scheme-format.md").unwrap_or_else(|e| panic!("{e}"));
+    assert_eq!(m.levels.len(), 2);
+    assert_relative_eq!(mhz(m.detuning(&m.drives[0])), -20.0, max_relative = 1e-6);
+    assert!(doc.contains("IEC 60825-1"));
+}

@@ -35,6 +35,8 @@ pub const MAX_COUPLINGS: usize = 5_000;
 pub const MAX_DRIVES: usize = 10_000;
 /// Most points of one `samples` envelope.
 pub const MAX_SAMPLE_POINTS: usize = 100_000;
+/// Most problems listed for one file; the rest are counted in a last line.
+pub const MAX_DIAGNOSTICS: usize = 100;
 /// Initial populations must sum to 1 within this.
 pub const POPULATION_SUM_TOLERANCE: f64 = 1e-9;
 
@@ -248,6 +250,7 @@ fn validate_raw(
 ) -> Result<Model, SchemeError> {
     let mut ctx = validate::Ctx::new(text, overridden);
     let model = validate::validate(raw, &mut ctx);
+    let suppressed = ctx.suppressed;
     let mut diags = ctx.diags;
     match model {
         Some(m) if diags.is_empty() => Ok(m),
@@ -259,7 +262,13 @@ fn validate_raw(
                     "an incomplete scheme",
                 ));
             }
-            diags.sort_by_key(|d| d.line.unwrap_or(usize::MAX));
+            diags.sort_by_key(|d| (d.line.unwrap_or(usize::MAX), d.column.unwrap_or(0)));
+            if suppressed > 0 {
+                diags.push(Diagnostic::whole_file(
+                    format!("at most {MAX_DIAGNOSTICS} problems listed"),
+                    format!("{suppressed} more problems, not shown"),
+                ));
+            }
             Err(SchemeError {
                 file: file_name.to_string(),
                 diagnostics: diags,

@@ -9,8 +9,8 @@
 use super::locate::{KeyPath, Locator};
 use super::raw::{Id, Initial, RawEnvelope, RawField, RawScheme, Scalar};
 use super::{
-    Diagnostic, MAX_COUPLINGS, MAX_DRIVES, MAX_FIELDS, MAX_LEVELS, MAX_SAMPLE_POINTS,
-    POPULATION_SUM_TOLERANCE,
+    Diagnostic, MAX_COUPLINGS, MAX_DIAGNOSTICS, MAX_DRIVES, MAX_FIELDS, MAX_LEVELS,
+    MAX_SAMPLE_POINTS, POPULATION_SUM_TOLERANCE,
 };
 use crate::model::{
     gaussian_sigma_from_intensity_fwhm, Coupling, Dipole, Drive, Envelope, Field, Level, Method,
@@ -25,6 +25,8 @@ pub(crate) struct Ctx<'a> {
     pub(crate) diags: Vec<Diagnostic>,
     /// Rendered key paths whose values came from overrides.
     overridden: Vec<String>,
+    /// Problems found beyond [`MAX_DIAGNOSTICS`], counted but not listed.
+    pub(crate) suppressed: usize,
 }
 
 /// Sign rule for a quantity.
@@ -41,6 +43,7 @@ impl<'a> Ctx<'a> {
             loc: Locator::new(text),
             diags: Vec::new(),
             overridden,
+            suppressed: 0,
         }
     }
 
@@ -51,6 +54,10 @@ impl<'a> Ctx<'a> {
         expected: impl Into<String>,
         found: impl Into<String>,
     ) {
+        if self.diags.len() >= MAX_DIAGNOSTICS {
+            self.suppressed += 1;
+            return;
+        }
         let p = path.to_string();
         let mut found = found.into();
         if self.overridden.contains(&p) {
@@ -66,6 +73,12 @@ impl<'a> Ctx<'a> {
     }
 
     fn push(&mut self, path: &KeyPath, expected: impl Into<String>, found: impl Into<String>) {
+        if self.diags.len() >= MAX_DIAGNOSTICS {
+            // Locating costs a pass over the text; do not pay it for
+            // messages that will not be shown.
+            self.suppressed += 1;
+            return;
+        }
         let pos = self.loc.locate(path);
         self.push_at(path, pos, expected, found);
     }
@@ -212,6 +225,13 @@ pub fn valid_id(id: &str) -> bool {
 }
 
 const ID_RULE: &str = "an id made of letters, digits, _ ' + or -";
+
+/// A population sum for messages: 12 significant digits, so that 0.7 + 0.2
+/// reads 0.9 while a miss of 1e-9 still shows.
+fn sum_text(x: f64) -> String {
+    let s = format!("{x:.12}");
+    s.trim_end_matches('0').trim_end_matches('.').to_string()
+}
 
 /// A short list of ids for messages.
 fn id_list(ids: &[String]) -> String {
@@ -385,15 +405,15 @@ pub(crate) fn validate(raw: &RawScheme, ctx: &mut Ctx) -> Option<Model> {
         }
     };
     // A pair [a, b] of two distinct known levels.
-    let pair = |ctx: &mut Ctx, path: &KeyPath, ids: &Option<Vec<Id>>, what: &str| {
+    let pair = |ctx: &mut Ctx, path: &KeyPath, ids: &Option<Vec<Id>>| {
         let Some(ids) = ids else {
-            ctx.missing(path, format!("{what}: a pair of level ids [a, b]"));
+            ctx.missing(path, "a pair of level ids [a, b]");
             return None;
         };
         if ids.len() != 2 {
             ctx.push(
                 path,
-                format!("{what}: a pair of level ids [a, b]"),
+                "a pair of level ids [a, b]",
                 format!("a list of {} ids", ids.len()),
             );
             return None;
@@ -404,7 +424,7 @@ pub(crate) fn validate(raw: &RawScheme, ctx: &mut Ctx) -> Option<Model> {
         if a == b {
             ctx.push(
                 path,
-                format!("{what}: two different levels"),
+                "two different levels",
                 format!("[{0}, {0}] (the same level twice)", ids[0].0),
             );
             return None;
@@ -469,7 +489,7 @@ pub(crate) fn validate(raw: &RawScheme, ctx: &mut Ctx) -> Option<Model> {
     let mut couplings: Vec<Option<CouplingInfo>> = Vec::new();
     for (ci, rc) in raw_couplings.iter().enumerate() {
         let path = cp.i(ci);
-        let pr = pair(ctx, &path.k("between"), &rc.between, "between");
+        let pr = pair(ctx, &path.k("between"), &rc.between);
         let (lower, upper) = match pr {
             Some((a, b)) => {
                 // Lower energy first; equal energies keep the file order of levels.
@@ -854,7 +874,7 @@ pub(crate) fn validate(raw: &RawScheme, ctx: &mut Ctx) -> Option<Model> {
                 ctx.push(
                     &ip,
                     "initial populations summing to 1 (within 1e-9)",
-                    format!("a sum of {}", super::raw::format_number(sum)),
+                    format!("a sum of {}", sum_text(sum)),
                 );
             }
         }
@@ -1014,7 +1034,7 @@ pub(crate) fn validate(raw: &RawScheme, ctx: &mut Ctx) -> Option<Model> {
             })
         })
         .collect::<Option<Vec<_>>>()?;
-    Some(Model {
+    let model = Model {
         title: raw.title.as_ref().map(|t| t.text()),
         levels,
         couplings,
@@ -1025,10 +1045,55 @@ pub(crate) fn validate(raw: &RawScheme, ctx: &mut Ctx) -> Option<Model> {
         tolerance,
         window,
         solver,
-    })
+    };
+    check_finite(ctx, &model);
+    ctx.diags.is_empty().then_some(model)
 }
 
-type PairFn<'p> = dyn Fn(&mut Ctx, &KeyPath, &Option<Vec<Id>>, &str) -> Option<(usize, usize)> + 'p;
+/// Extreme but finite inputs (a wavelength of 1e-300 m, a lifetime of
+/// 1e-320 s) can overflow in derived numbers. No later stage may see a
+/// non-finite number, so refuse them here, naming where they arose.
+fn check_finite(ctx: &mut Ctx, m: &Model) {
+    let root = KeyPath::root();
+    let bad = "an out-of-range value (a derived number overflows)";
+    let want = "values whose derived numbers stay finite";
+    for l in &m.levels {
+        if !(l.omega.is_finite() && l.gamma.is_finite()) {
+            ctx.push(&root.k("levels").k(&l.id), want, bad);
+        }
+    }
+    for (i, c) in m.couplings.iter().enumerate() {
+        if !c.dipole.value().is_finite() {
+            ctx.push(&root.k("couplings").i(i), want, bad);
+        }
+    }
+    for f in &m.fields {
+        let env = &f.envelope;
+        let (a, b) = env.support();
+        let env_ok =
+            a.is_finite() && b.is_finite() && env.area().is_finite() && env.center().is_finite();
+        let ok = f.omega.is_finite()
+            && f.chirp.is_finite()
+            && f.phase.is_finite()
+            && f.peak_intensity.map_or(true, |x| x.is_finite());
+        if !env_ok {
+            ctx.push(&root.k("fields").k(&f.id).k("envelope"), want, bad);
+        } else if !ok {
+            ctx.push(&root.k("fields").k(&f.id), want, bad);
+        }
+    }
+    for d in &m.drives {
+        if !(d.rabi.is_finite() && m.detuning(d).is_finite()) {
+            ctx.push(&root.k("fields").k(&m.fields[d.field].id), want, bad);
+        }
+    }
+    if !(m.window.start.is_finite() && m.window.end.is_finite() && m.window.duration().is_finite())
+    {
+        ctx.push(&root.k("window"), want, bad);
+    }
+}
+
+type PairFn<'p> = dyn Fn(&mut Ctx, &KeyPath, &Option<Vec<Id>>) -> Option<(usize, usize)> + 'p;
 
 /// What a field's validation needs to know of levels and couplings.
 #[derive(Clone, Copy)]
@@ -1087,7 +1152,7 @@ fn validate_field(
                     .map(units::omega_from_wavelength);
             } else if let Some(t) = &f.tuned {
                 let tp = path.k("tuned");
-                let pr = pair(ctx, &tp.k("to"), &t.to, "to");
+                let pr = pair(ctx, &tp.k("to"), &t.to);
                 let det =
                     ctx.req_quantity(&tp.k("detuning"), &t.detuning, Kind::Frequency, Sign::Any);
                 if let Some((a, b)) = pr {
@@ -1193,7 +1258,7 @@ fn validate_field(
                 let ov = if key == "rabi" { &f.rabi } else { &f.area };
                 if let Some(ov) = ov {
                     let kp = path.k(key);
-                    let pr = pair(ctx, &kp.k("on"), &ov.on, "on");
+                    let pr = pair(ctx, &kp.k("on"), &ov.on);
                     let v = if key == "rabi" {
                         ctx.req_quantity(&kp.k("value"), &ov.value, Kind::Frequency, Sign::Any)
                     } else {
