@@ -13,11 +13,12 @@ fn run(args: &[&str]) -> Output {
 }
 
 fn demos() -> Vec<PathBuf> {
-    let mut v: Vec<PathBuf> = std::fs::read_dir(Path::new(env!("CARGO_MANIFEST_DIR")).join("level_schemes"))
-        .expect("level_schemes/ exists")
-        .filter_map(|e| e.ok().map(|e| e.path()))
-        .filter(|p| p.extension().is_some_and(|x| x == "yaml"))
-        .collect();
+    let mut v: Vec<PathBuf> =
+        std::fs::read_dir(Path::new(env!("CARGO_MANIFEST_DIR")).join("level_schemes"))
+            .expect("level_schemes/ exists")
+            .filter_map(|e| e.ok().map(|e| e.path()))
+            .filter(|p| p.extension().is_some_and(|x| x == "yaml"))
+            .collect();
     v.sort();
     v
 }
@@ -39,7 +40,12 @@ fn inspect_every_demo_in_every_format() {
         let d = demo.to_str().unwrap();
         for fmt in ["text", "markdown", "latex", "csv", "json"] {
             let out = run(&["inspect", d, "--format", fmt]);
-            assert_eq!(out.status.code(), Some(0), "{d} {fmt}: {}", String::from_utf8_lossy(&out.stderr));
+            assert_eq!(
+                out.status.code(),
+                Some(0),
+                "{d} {fmt}: {}",
+                String::from_utf8_lossy(&out.stderr)
+            );
             let s = String::from_utf8(out.stdout).unwrap();
             assert!(!s.is_empty());
             assert!(!s.contains("NaN") && !s.contains("inf"), "{d} {fmt}");
@@ -50,7 +56,15 @@ fn inspect_every_demo_in_every_format() {
             assert!(l["id"].is_string() && l["energy_hz"].is_number());
         }
         for dr in v["drives"].as_array().unwrap() {
-            for k in ["field", "lower", "upper", "transition_hz", "detuning_mhz", "rabi_mhz", "included"] {
+            for k in [
+                "field",
+                "lower",
+                "upper",
+                "transition_hz",
+                "detuning_mhz",
+                "rabi_mhz",
+                "included",
+            ] {
                 assert!(!dr[k].is_null(), "{d}: drive key {k} missing");
             }
         }
@@ -65,13 +79,21 @@ fn vet_every_demo_in_every_format() {
         for fmt in ["text", "markdown", "latex", "csv", "json"] {
             let out = run(&["vet", d, "--format", fmt]);
             let code = out.status.code();
-            assert!(matches!(code, Some(0) | Some(3)), "{d} {fmt}: {:?} {}", code, String::from_utf8_lossy(&out.stderr));
+            assert!(
+                matches!(code, Some(0) | Some(3)),
+                "{d} {fmt}: {:?} {}",
+                code,
+                String::from_utf8_lossy(&out.stderr)
+            );
             codes.push(code);
             let s = String::from_utf8(out.stdout).unwrap();
             assert!(!s.contains("NaN"), "{d} {fmt}");
             assert!(s.contains("levelplan"), "{d} {fmt}: provenance missing");
         }
-        assert!(codes.windows(2).all(|w| w[0] == w[1]), "{d}: exit status depends on the format");
+        assert!(
+            codes.windows(2).all(|w| w[0] == w[1]),
+            "{d}: exit status depends on the format"
+        );
         let out = run(&["vet", d, "--format", "json"]);
         let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
         for k in ["tolerance", "norm_error", "lost_population", "levels"] {
@@ -79,7 +101,14 @@ fn vet_every_demo_in_every_format() {
         }
         let mut flagged = 0;
         for l in v["levels"].as_array().unwrap() {
-            for k in ["id", "role", "final_population", "peak_population", "flagged", "sources"] {
+            for k in [
+                "id",
+                "role",
+                "final_population",
+                "peak_population",
+                "flagged",
+                "sources",
+            ] {
                 assert!(!l[k].is_null(), "{d}: level key {k}");
             }
             let role = l["role"].as_str().unwrap();
@@ -104,7 +133,14 @@ fn vet_every_demo_in_every_format() {
 fn missing_scheme_is_bad_input_and_writes_nothing() {
     let dir = scratch("missing");
     let target = dir.join("report.md");
-    let out = run(&["vet", "no/such/scheme.yaml", "--format", "markdown", "--out", target.to_str().unwrap()]);
+    let out = run(&[
+        "vet",
+        "no/such/scheme.yaml",
+        "--format",
+        "markdown",
+        "--out",
+        target.to_str().unwrap(),
+    ]);
     assert_eq!(out.status.code(), Some(2));
     let err = String::from_utf8_lossy(&out.stderr);
     assert!(err.contains("no/such/scheme.yaml"), "{err}");
@@ -127,7 +163,14 @@ fn vet_out_file_matches_stdout() {
     let demo = demos()[0].clone();
     let dir = scratch("out");
     let target = dir.join("table.tex");
-    let a = run(&["vet", demo.to_str().unwrap(), "--format", "latex", "--out", target.to_str().unwrap()]);
+    let a = run(&[
+        "vet",
+        demo.to_str().unwrap(),
+        "--format",
+        "latex",
+        "--out",
+        target.to_str().unwrap(),
+    ]);
     assert!(matches!(a.status.code(), Some(0) | Some(3)));
     assert!(a.stdout.is_empty());
     let b = run(&["vet", demo.to_str().unwrap(), "--format", "latex"]);
@@ -143,8 +186,23 @@ fn evolve_ends_exactly_at_the_window_end_with_the_vet_populations() {
         let dir = scratch("evolve");
         let csv = dir.join("run.csv");
         let svg = dir.join("run.svg");
-        let out = run(&["evolve", d, "--samples", "51", "--out", csv.to_str().unwrap(), "--plot", svg.to_str().unwrap(), "--log"]);
-        assert_eq!(out.status.code(), Some(0), "{d}: {}", String::from_utf8_lossy(&out.stderr));
+        let out = run(&[
+            "evolve",
+            d,
+            "--samples",
+            "51",
+            "--out",
+            csv.to_str().unwrap(),
+            "--plot",
+            svg.to_str().unwrap(),
+            "--log",
+        ]);
+        assert_eq!(
+            out.status.code(),
+            Some(0),
+            "{d}: {}",
+            String::from_utf8_lossy(&out.stderr)
+        );
         let text = std::fs::read_to_string(&csv).unwrap();
         let rows: Vec<&str> = text.lines().filter(|l| !l.starts_with('#')).collect();
         assert!(rows[0].starts_with("time_s,"));
@@ -152,15 +210,21 @@ fn evolve_ends_exactly_at_the_window_end_with_the_vet_populations() {
         let svg_text = std::fs::read_to_string(&svg).unwrap();
         assert!(svg_text.starts_with("<svg") && svg_text.contains("tolerance"));
 
-        let insp: serde_json::Value = serde_json::from_slice(&run(&["inspect", d, "--format", "json"]).stdout).unwrap();
+        let insp: serde_json::Value =
+            serde_json::from_slice(&run(&["inspect", d, "--format", "json"]).stdout).unwrap();
         let end = insp["window_s"][1].as_f64().unwrap();
         let last: Vec<f64> = rows[51].split(',').map(|x| x.parse().unwrap()).collect();
         assert_eq!(last[0], end, "{d}: last row is not the window end");
 
-        let vet: serde_json::Value = serde_json::from_slice(&run(&["vet", d, "--format", "json"]).stdout).unwrap();
+        let vet: serde_json::Value =
+            serde_json::from_slice(&run(&["vet", d, "--format", "json"]).stdout).unwrap();
         for (k, l) in vet["levels"].as_array().unwrap().iter().enumerate() {
             let p = l["final_population"].as_f64().unwrap();
-            assert!((p - last[k + 1]).abs() < 1e-7, "{d}: level {k}: vet {p} vs evolve {}", last[k + 1]);
+            assert!(
+                (p - last[k + 1]).abs() < 1e-7,
+                "{d}: level {k}: vet {p} vs evolve {}",
+                last[k + 1]
+            );
         }
     }
 }

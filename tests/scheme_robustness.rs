@@ -30,7 +30,7 @@ fn all_finite(m: &Model) -> bool {
             f.omega.is_finite()
                 && f.chirp.is_finite()
                 && f.phase.is_finite()
-                && f.peak_intensity.map_or(true, f64::is_finite)
+                && f.peak_intensity.is_none_or(f64::is_finite)
                 && f.envelope.area().is_finite()
         })
         && m.drives.iter().all(|d| d.rabi.is_finite())

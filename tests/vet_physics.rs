@@ -24,7 +24,9 @@ fn level<'a>(r: &'a VetReport, id: &str) -> &'a levelplan::report::LevelRow {
 fn rb87_text(duration_ns: f64, shape: &str) -> String {
     let rabi_mhz = 1e3 / (2.0 * duration_ns); // rectangular pi pulse: Omega T = pi
     let envelope = match shape {
-        "rectangular" => format!("{{ shape: rectangular, start: \"0 ns\", duration: \"{duration_ns} ns\" }}"),
+        "rectangular" => {
+            format!("{{ shape: rectangular, start: \"0 ns\", duration: \"{duration_ns} ns\" }}")
+        }
         _ => unreachable!(),
     };
     format!(
@@ -58,7 +60,11 @@ fn short_pi_pulse_leak_is_attributed_to_the_f2_prime_drive_at_266_65_mhz() {
     assert_eq!(f3.role, Role::Target);
     let f2p = level(&r, "F2p");
     assert_eq!(f2p.role, Role::Spectator);
-    assert!(f2p.flagged, "F'=2 should leak above 1e-3 with a 20 ns square pulse: {}", f2p.final_population);
+    assert!(
+        f2p.flagged,
+        "F'=2 should leak above 1e-3 with a 20 ns square pulse: {}",
+        f2p.final_population
+    );
     let top = &f2p.sources[0];
     assert_eq!(top.field, "probe");
     assert_eq!(top.from, "F2");
@@ -69,9 +75,16 @@ fn short_pi_pulse_leak_is_attributed_to_the_f2_prime_drive_at_266_65_mhz() {
     let omega = 0.6 * PI / 20e-9;
     let delta = 2.0 * PI * 266.65e6;
     let p1 = omega * omega * (delta * 20e-9 / 2.0).sin().powi(2) / (delta * delta);
-    assert!((top.population - p1).abs() < 1e-6 * p1.max(1e-12) + 1e-12, "{} vs {p1}", top.population);
+    assert!(
+        (top.population - p1).abs() < 1e-6 * p1.max(1e-12) + 1e-12,
+        "{} vs {p1}",
+        top.population
+    );
     // The remedy is computed and a smooth envelope suppresses the leak by orders of magnitude.
-    let m = f2p.remedy.as_ref().expect("a flagged leak carries a remedy");
+    let m = f2p
+        .remedy
+        .as_ref()
+        .expect("a flagged leak carries a remedy");
     assert!(m.blackman_same_area < 1e-2 * f2p.final_population, "{m:?}");
     assert!(r.flagged >= 1);
 }
@@ -115,6 +128,9 @@ fields:
     assert!(scaled[0] > 0.0);
     for s in &scaled[1..] {
         let ratio = s / scaled[0];
-        assert!((0.5..2.0).contains(&ratio), "relative difference does not scale with P: {scaled:?}");
+        assert!(
+            (0.5..2.0).contains(&ratio),
+            "relative difference does not scale with P: {scaled:?}"
+        );
     }
 }

@@ -1075,7 +1075,7 @@ fn check_finite(ctx: &mut Ctx, m: &Model) {
         let ok = f.omega.is_finite()
             && f.chirp.is_finite()
             && f.phase.is_finite()
-            && f.peak_intensity.map_or(true, |x| x.is_finite());
+            && f.peak_intensity.is_none_or(|x| x.is_finite());
         if !env_ok {
             ctx.push(&root.k("fields").k(&f.id).k("envelope"), want, bad);
         } else if !ok {

@@ -33,7 +33,10 @@ pub const DEFAULT_STEP_BUDGET: u64 = 5_000_000;
 
 impl Default for SolveOptions {
     fn default() -> Self {
-        SolveOptions { samples: 0, step_budget: DEFAULT_STEP_BUDGET }
+        SolveOptions {
+            samples: 0,
+            step_budget: DEFAULT_STEP_BUDGET,
+        }
     }
 }
 
@@ -66,7 +69,11 @@ pub struct Solution {
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]
 pub enum SolveError {
     #[error("the run needs more than {budget} steps: the fastest time scale is {period_s:.3e} s, set by {cause}; raise the step budget, shorten the window, or lower solver.detuning_cutoff to leave that drive out")]
-    StepBudget { budget: u64, period_s: f64, cause: String },
+    StepBudget {
+        budget: u64,
+        period_s: f64,
+        cause: String,
+    },
     #[error("method 'exact' needs a piecewise-constant frame Hamiltonian, but {reason}; use method 'adaptive' or 'auto'")]
     ExactNotApplicable { reason: String },
     #[error("non-finite value in {stage}")]
