@@ -11,10 +11,11 @@
 //! Must not: propagate, print, or know about output formats. Everything here
 //! is in SI with angular frequencies, hbar = 1 (energies are E/hbar).
 //!
-//! Conventions (hbar = 1, bare basis): H = sum_k (omega_k - i gamma_k / 2)|k><k|
-//! + sum over drives of (Omega/2) f(t) e^{-i phi(t)} |b><a| + h.c. (RWA), with
-//! phi(t) = omega_L t + (chirp/2) (t - t_c)^2 + phase; a drive with `rwa: false`
-//! adds the counter-rotating term (Omega/2) f(t) e^{+i phi(t)} |b><a| + h.c.
+//! Conventions (hbar = 1, bare basis): the diagonal is omega_k - i gamma_k / 2;
+//! each RWA drive adds (Omega/2) f(t) e^{-i phi(t)} on |b><a| and its conjugate,
+//! with phi(t) = omega_L t + (chirp/2) (t - t_c)^2 + phase; a drive with
+//! `rwa: false` also adds the counter-rotating term (Omega/2) f(t) e^{+i phi(t)}
+//! on |b><a| and its conjugate.
 //!
 //! Frame: c_k(t) = e^{-i varphi_k(t)} a_k(t) with varphi_k a quadratic
 //! polynomial in tau = t - t0 (t0 the window start). In the frame
@@ -188,7 +189,9 @@ fn check_model(model: &Model) -> Result<(), AssemblyError> {
         }
     }
     for (i, p) in model.initial.iter().enumerate() {
-        finite(*p, || format!("initial population of level '{}'", model.levels[i].id))?;
+        finite(*p, || {
+            format!("initial population of level '{}'", model.levels[i].id)
+        })?;
         if *p < 0.0 {
             return Err(AssemblyError::Inconsistent(format!(
                 "negative initial population of level '{}'",
@@ -198,7 +201,9 @@ fn check_model(model: &Model) -> Result<(), AssemblyError> {
     }
     for (i, c) in model.couplings.iter().enumerate() {
         if c.lower >= n || c.upper >= n || c.lower == c.upper {
-            return Err(AssemblyError::Inconsistent(format!("coupling {i} names bad levels")));
+            return Err(AssemblyError::Inconsistent(format!(
+                "coupling {i} names bad levels"
+            )));
         }
     }
     for f in &model.fields {
@@ -208,14 +213,20 @@ fn check_model(model: &Model) -> Result<(), AssemblyError> {
     }
     for (i, d) in model.drives.iter().enumerate() {
         if d.field >= model.fields.len() || d.coupling >= model.couplings.len() {
-            return Err(AssemblyError::Inconsistent(format!("drive {i} names a bad field or coupling")));
+            return Err(AssemblyError::Inconsistent(format!(
+                "drive {i} names a bad field or coupling"
+            )));
         }
-        finite(d.rabi, || format!("Rabi frequency of {}", drive_name(model, i)))?;
+        finite(d.rabi, || {
+            format!("Rabi frequency of {}", drive_name(model, i))
+        })?;
     }
     finite(model.window.start, || "window start".into())?;
     finite(model.window.end, || "window end".into())?;
     if model.window.end < model.window.start {
-        return Err(AssemblyError::Inconsistent("window ends before it starts".into()));
+        return Err(AssemblyError::Inconsistent(
+            "window ends before it starts".into(),
+        ));
     }
     Ok(())
 }
@@ -243,7 +254,11 @@ impl FrameHamiltonian {
         // Spanning forest: roots in order of initial population (largest first),
         // then Prim's walk taking the strongest drive to an unvisited level.
         let mut roots: Vec<usize> = (0..n).collect();
-        roots.sort_by(|&a, &b| model.initial[b].total_cmp(&model.initial[a]).then(a.cmp(&b)));
+        roots.sort_by(|&a, &b| {
+            model.initial[b]
+                .total_cmp(&model.initial[a])
+                .then(a.cmp(&b))
+        });
         let mut visited = vec![false; n];
         // Frame phase polynomial per level: varphi = A + B' tau + C tau^2/2 with
         // detuning = omega - B' kept directly (small numbers only).
@@ -265,7 +280,9 @@ impl FrameHamiltonian {
                 for &i in &included {
                     let c = &model.couplings[model.drives[i].coupling];
                     if visited[c.lower] != visited[c.upper]
-                        && best.map_or(true, |b| model.drives[i].rabi.abs() > model.drives[b].rabi.abs())
+                        && best.map_or(true, |b| {
+                            model.drives[i].rabi.abs() > model.drives[b].rabi.abs()
+                        })
                     {
                         best = Some(i);
                     }
@@ -338,7 +355,18 @@ impl FrameHamiltonian {
                 let rho0 = p0 - dphase0;
                 let rate = shift + ddet;
                 let sweep = p2 - dcurv;
-                terms.push(make_term(i, d.field, a, b, half, rho0, rate, sweep, duration, Rotation::CoRotating));
+                terms.push(make_term(
+                    i,
+                    d.field,
+                    a,
+                    b,
+                    half,
+                    rho0,
+                    rate,
+                    sweep,
+                    duration,
+                    Rotation::CoRotating,
+                ));
             }
             if !f.rwa {
                 // Counter-rotating: rho = -phi - (varphi_b - varphi_a);
@@ -377,7 +405,15 @@ impl FrameHamiltonian {
                 )));
             }
         }
-        Ok(FrameHamiltonian { t0, duration, levels, terms, included, excluded, tree })
+        Ok(FrameHamiltonian {
+            t0,
+            duration,
+            levels,
+            terms,
+            included,
+            excluded,
+            tree,
+        })
     }
 
     /// Number of levels.
@@ -408,7 +444,9 @@ impl FrameHamiltonian {
                 return Some(format!("{name} is chirped"));
             }
             if !f.rwa {
-                return Some(format!("{name} keeps the counter-rotating term (rwa: false)"));
+                return Some(format!(
+                    "{name} keeps the counter-rotating term (rwa: false)"
+                ));
             }
             if let Some(r) = t.residual {
                 return Some(format!(
@@ -429,7 +467,10 @@ impl FrameHamiltonian {
         let mut consider = |rate: f64, cause: &dyn Fn() -> String| {
             let rate = rate.abs();
             if rate > 0.0 && best.as_ref().map_or(true, |b| rate > b.rate) {
-                best = Some(FastestScale { rate, cause: cause() });
+                best = Some(FastestScale {
+                    rate,
+                    cause: cause(),
+                });
             }
         };
         let ends = [0.0, self.duration];
@@ -444,7 +485,9 @@ impl FrameHamiltonian {
                     None => format!("the frame detuning of level '{}'", model.levels[k].id),
                 });
             }
-            consider(l.half_gamma, &|| format!("the decay of level '{}'", model.levels[k].id));
+            consider(l.half_gamma, &|| {
+                format!("the decay of level '{}'", model.levels[k].id)
+            });
         }
         for t in &self.terms {
             consider(2.0 * t.coupling.norm(), &|| {

@@ -11,7 +11,10 @@ use std::f64::consts::PI;
 const OMEGA0: f64 = 2.0 * PI * 377.1e12; // invented optical transition
 
 fn sech_pulse(rabi: f64, delta: f64, tau_p: f64) -> levelplan::model::Model {
-    let env = Envelope::Sech { center: 0.0, tau: tau_p };
+    let env = Envelope::Sech {
+        center: 0.0,
+        tau: tau_p,
+    };
     let (a, b) = env.support();
     Builder::new()
         .level("g", 0.0, 0.0)
@@ -30,7 +33,8 @@ fn sech_pulse(rabi: f64, delta: f64, tau_p: f64) -> levelplan::model::Model {
 #[test]
 fn rosen_zener_sech_pulse() {
     let tau_p = 20e-9;
-    for (area_over_pi, delta_tau) in [(1.0, 0.0), (0.5, 0.0), (1.0, 0.4), (2.6, 0.9), (1.3, -0.25)] {
+    for (area_over_pi, delta_tau) in [(1.0, 0.0), (0.5, 0.0), (1.0, 0.4), (2.6, 0.9), (1.3, -0.25)]
+    {
         let rabi = area_over_pi / tau_p; // Omega pi tau = area_over_pi * pi
         let m0 = sech_pulse(rabi, delta_tau / tau_p, tau_p);
         let delta = m0.detuning(&m0.drives[0]);
@@ -38,8 +42,16 @@ fn rosen_zener_sech_pulse() {
         assert_eq!(s.method, MethodUsed::Adaptive);
         let x = PI * rabi * tau_p / 2.0;
         let p = x.sin().powi(2) / (PI * delta * tau_p / 2.0).cosh().powi(2);
-        eprintln!("RZ {area_over_pi} {delta_tau}: {:e} steps {}", s.final_populations[1] - p, s.steps);
-        assert!((s.final_populations[1] - p).abs() < 1e-6, "{} vs {p}", s.final_populations[1]);
+        eprintln!(
+            "RZ {area_over_pi} {delta_tau}: {:e} steps {}",
+            s.final_populations[1] - p,
+            s.steps
+        );
+        assert!(
+            (s.final_populations[1] - p).abs() < 1e-6,
+            "{} vs {p}",
+            s.final_populations[1]
+        );
     }
 }
 
@@ -77,8 +89,17 @@ fn landau_zener_chirped_passage() {
         let s = solve(&m, &SolveOptions::default()).expect("solve");
         assert_eq!(s.method, MethodUsed::Adaptive);
         let p = 1.0 - (-adiabaticity).exp();
-        eprintln!("LZ {adiabaticity}: {} vs {p} ({:e}), steps {}", s.final_populations[1], s.final_populations[1] - p, s.steps);
-        assert!((s.final_populations[1] - p).abs() < 1e-3, "{} vs {p}", s.final_populations[1]);
+        eprintln!(
+            "LZ {adiabaticity}: {} vs {p} ({:e}), steps {}",
+            s.final_populations[1],
+            s.final_populations[1] - p,
+            s.steps
+        );
+        assert!(
+            (s.final_populations[1] - p).abs() < 1e-3,
+            "{} vs {p}",
+            s.final_populations[1]
+        );
     }
 }
 
@@ -96,10 +117,25 @@ fn free_decay_from_a_lifetime() {
             .window(0.0, t)
             .method(method)
             .build();
-        let s = solve(&m, &SolveOptions { samples: 11, ..Default::default() }).expect("solve");
+        let s = solve(
+            &m,
+            &SolveOptions {
+                samples: 11,
+                ..Default::default()
+            },
+        )
+        .expect("solve");
         let p = (-t / lifetime).exp();
-        assert!((s.final_populations[1] - p).abs() < 1e-9, "{method:?}: {} vs {p}", s.final_populations[1]);
-        assert!((s.lost - (1.0 - p)).abs() < 1e-9, "{method:?}: lost {}", s.lost);
+        assert!(
+            (s.final_populations[1] - p).abs() < 1e-9,
+            "{method:?}: {} vs {p}",
+            s.final_populations[1]
+        );
+        assert!(
+            (s.lost - (1.0 - p)).abs() < 1e-9,
+            "{method:?}: lost {}",
+            s.lost
+        );
         assert!(s.norm_error < 1e-9);
         for (ts, pops) in &s.samples {
             assert!((pops[1] - (-ts / lifetime).exp()).abs() < 1e-9);
@@ -125,21 +161,48 @@ fn decay_during_driving_conserves_probability() {
             .window(0.0, 150e-9)
             .method(method)
             .build();
-        let s = solve(&m, &SolveOptions { samples: 31, ..Default::default() }).expect("solve");
+        let s = solve(
+            &m,
+            &SolveOptions {
+                samples: 31,
+                ..Default::default()
+            },
+        )
+        .expect("solve");
         assert!(s.lost > 0.1, "{method:?}: lost {}", s.lost);
-        assert!(s.norm_error < 1e-9, "{method:?}: norm error {}", s.norm_error);
+        assert!(
+            s.norm_error < 1e-9,
+            "{method:?}: norm error {}",
+            s.norm_error
+        );
         let sum: f64 = s.final_populations.iter().sum();
         assert!((sum + s.lost - 1.0).abs() < 1e-9);
         // After the pulse: P_e(150 ns) = P_e(50 ns) exp(-100 ns / lifetime).
-        let at = |t: f64| s.samples.iter().find(|x| (x.0 - t).abs() < 1e-12).map(|x| x.1[1]).expect("sample");
+        let at = |t: f64| {
+            s.samples
+                .iter()
+                .find(|x| (x.0 - t).abs() < 1e-12)
+                .map(|x| x.1[1])
+                .expect("sample")
+        };
         let ratio = at(150e-9) / at(50e-9);
-        assert!((ratio - (-100e-9 / lifetime).exp()).abs() < 1e-8, "{method:?}: {ratio}");
+        assert!(
+            (ratio - (-100e-9 / lifetime).exp()).abs() < 1e-8,
+            "{method:?}: {ratio}"
+        );
     }
 }
 
 /// Lambda system: |1> and |2> below |e>, fields detuned by Delta from |e>,
 /// two-photon detuning delta (bare).
-fn lambda(o1: f64, o2: f64, delta: f64, two_photon: f64, t: f64, samples: usize) -> levelplan::solve::Solution {
+fn lambda(
+    o1: f64,
+    o2: f64,
+    delta: f64,
+    two_photon: f64,
+    t: f64,
+    samples: usize,
+) -> levelplan::solve::Solution {
     let w1 = 0.0;
     let w2 = tau(6.8e9); // invented ground splitting
     let we = OMEGA0;
@@ -156,7 +219,14 @@ fn lambda(o1: f64, o2: f64, delta: f64, two_photon: f64, t: f64, samples: usize)
         .initial("1")
         .window(0.0, t)
         .build();
-    solve(&m, &SolveOptions { samples, ..Default::default() }).expect("solve")
+    solve(
+        &m,
+        &SolveOptions {
+            samples,
+            ..Default::default()
+        },
+    )
+    .expect("solve")
 }
 
 /// Time and value of the first maximum of level k in the samples (parabolic
@@ -201,7 +271,10 @@ fn lambda_raman_effective_rabi_and_light_shifts() {
     let s = lambda(o1, o2, delta, 0.0, 1.5 * 2.0 * PI / w, 3001);
     let (t_max, p_max) = first_max(&s, 1);
     let amp = o_eff * o_eff / (w * w);
-    eprintln!("Raman uncompensated: t_max {t_max:e} vs {:e}, p_max {p_max} vs {amp}", PI / w);
+    eprintln!(
+        "Raman uncompensated: t_max {t_max:e} vs {:e}, p_max {p_max} vs {amp}",
+        PI / w
+    );
     assert!((t_max / (PI / w) - 1.0).abs() < 0.01, "t_max {t_max}");
     assert!((p_max / amp - 1.0).abs() < 0.01, "p_max {p_max} vs {amp}");
     assert!((s.peak_populations[1] / amp - 1.0).abs() < 0.01);

@@ -32,7 +32,11 @@ fn exact_matches_detuned_rabi_formula() {
         // the 0.5 rad/s level for optical carriers).
         let delta = m.detuning(&m.drives[0]);
         let p = rabi_formula(rabi, delta, t);
-        assert!((s.final_populations[1] - p).abs() < 1e-9, "{} vs {p}", s.final_populations[1]);
+        assert!(
+            (s.final_populations[1] - p).abs() < 1e-9,
+            "{} vs {p}",
+            s.final_populations[1]
+        );
         assert!((s.final_populations[0] - (1.0 - p)).abs() < 1e-9);
         assert!(s.norm_error < 1e-10, "norm error {}", s.norm_error);
         assert_eq!(s.lost, 0.0);
@@ -49,8 +53,17 @@ fn adaptive_matches_detuned_rabi_formula() {
         assert_eq!(s.method, MethodUsed::Adaptive);
         let delta = m.detuning(&m.drives[0]);
         let p = rabi_formula(rabi, delta, t);
-        eprintln!("adaptive err {:e} steps {} evals {}", s.final_populations[1] - p, s.steps, s.evaluations);
-        assert!((s.final_populations[1] - p).abs() < 1e-7, "{} vs {p}", s.final_populations[1]);
+        eprintln!(
+            "adaptive err {:e} steps {} evals {}",
+            s.final_populations[1] - p,
+            s.steps,
+            s.evaluations
+        );
+        assert!(
+            (s.final_populations[1] - p).abs() < 1e-7,
+            "{} vs {p}",
+            s.final_populations[1]
+        );
         assert!(s.norm_error < 1e-8, "norm error {}", s.norm_error);
     }
 }
@@ -66,8 +79,16 @@ fn peak_population_is_the_rabi_amplitude() {
             let s = solve(&m, &SolveOptions::default()).expect("solve");
             let delta = m.detuning(&m.drives[0]);
             let amp = rabi * rabi / (rabi * rabi + delta * delta);
-            eprintln!("{method:?} peak err {:e} steps {}", s.peak_populations[1] - amp, s.steps);
-            assert!((s.peak_populations[1] - amp).abs() < 1e-7 * amp.max(1e-3), "{method:?}: {} vs {amp}", s.peak_populations[1]);
+            eprintln!(
+                "{method:?} peak err {:e} steps {}",
+                s.peak_populations[1] - amp,
+                s.steps
+            );
+            assert!(
+                (s.peak_populations[1] - amp).abs() < 1e-7 * amp.max(1e-3),
+                "{method:?}: {} vs {amp}",
+                s.peak_populations[1]
+            );
             assert!((s.peak_populations[0] - 1.0).abs() < 1e-12);
         }
     }

@@ -136,7 +136,12 @@ pub(crate) fn propagate(
             env[t.field] = Piece::of(&model.fields[t.field].envelope, mid).eval(mid);
         }
         let h = dense_h(fh, &env, 0.0);
-        segs.push(Segment { a: w[0], b: w[1], env, dt_max: substep_for(&h) });
+        segs.push(Segment {
+            a: w[0],
+            b: w[1],
+            env,
+            dt_max: substep_for(&h),
+        });
     }
     if segs.len() as u64 > opts.step_budget {
         return Err(SolveError::StepBudget {
@@ -182,7 +187,8 @@ pub(crate) fn propagate(
     let mut d1 = vec![0.0; 2 * n];
     interleave(&c, &mut y0);
     tracker.point(&y0);
-    let populations = |c: &DVector<Complex64>| -> Vec<f64> { c.iter().map(|z| z.norm_sqr()).collect() };
+    let populations =
+        |c: &DVector<Complex64>| -> Vec<f64> { c.iter().map(|z| z.norm_sqr()).collect() };
     let mut samples = Vec::with_capacity(plan.samples);
     if let Some(Some(_)) = plan.sample_at.first() {
         samples.push((plan.stops[0], populations(&c)));
@@ -206,7 +212,9 @@ pub(crate) fn propagate(
             1
         };
         let dt = len / nsub as f64;
-        let pos = cache.iter().position(|(d, _, _)| (d - dt).abs() <= 1e-12 * dt);
+        let pos = cache
+            .iter()
+            .position(|(d, _, _)| (d - dt).abs() <= 1e-12 * dt);
         let idx = match pos {
             Some(p) => p,
             None => {
@@ -248,7 +256,10 @@ pub(crate) fn propagate(
         steps += nsub;
         if !c.iter().all(|z| z.re.is_finite() && z.im.is_finite()) || !lost.is_finite() {
             return Err(SolveError::NonFinite {
-                stage: format!("exact propagation of the segment {:.6e} s to {:.6e} s", seg.a, seg.b),
+                stage: format!(
+                    "exact propagation of the segment {:.6e} s to {:.6e} s",
+                    seg.a, seg.b
+                ),
             });
         }
         if let Some(Some(_)) = plan.sample_at.get(i + 1) {

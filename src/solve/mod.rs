@@ -40,7 +40,10 @@ pub const DEFAULT_STEP_BUDGET: u64 = 5_000_000;
 
 impl Default for SolveOptions {
     fn default() -> Self {
-        SolveOptions { samples: 0, step_budget: DEFAULT_STEP_BUDGET }
+        SolveOptions {
+            samples: 0,
+            step_budget: DEFAULT_STEP_BUDGET,
+        }
     }
 }
 
@@ -73,7 +76,11 @@ pub struct Solution {
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]
 pub enum SolveError {
     #[error("the run needs more than {budget} steps: the fastest time scale is {period_s:.3e} s, set by {cause}; raise the step budget, shorten the window, or lower solver.detuning_cutoff to leave that drive out")]
-    StepBudget { budget: u64, period_s: f64, cause: String },
+    StepBudget {
+        budget: u64,
+        period_s: f64,
+        cause: String,
+    },
     #[error("method 'exact' needs a piecewise-constant frame Hamiltonian, but {reason}; use method 'adaptive' or 'auto'")]
     ExactNotApplicable { reason: String },
     #[error("non-finite value in {stage}")]
@@ -100,13 +107,17 @@ pub fn solve(model: &Model, opts: &SolveOptions) -> Result<Solution, SolveError>
     let (rtol, atol) = (model.solver.rtol, model.solver.atol);
     if !(rtol.is_finite() && rtol > 0.0 && atol.is_finite() && atol > 0.0) {
         return Err(SolveError::InvalidModel {
-            reason: format!("tolerances must be positive and finite (rtol {rtol:e}, atol {atol:e})"),
+            reason: format!(
+                "tolerances must be positive and finite (rtol {rtol:e}, atol {atol:e})"
+            ),
         });
     }
     let obstacle = fh.piecewise_constant_obstacle(model);
     let method = match (model.solver.method, &obstacle) {
         (Method::Exact, Some(reason)) => {
-            return Err(SolveError::ExactNotApplicable { reason: reason.clone() })
+            return Err(SolveError::ExactNotApplicable {
+                reason: reason.clone(),
+            })
         }
         (Method::Exact, None) | (Method::Auto, None) => MethodUsed::Exact,
         (Method::Adaptive, _) | (Method::Auto, Some(_)) => MethodUsed::Adaptive,
@@ -120,18 +131,32 @@ pub fn solve(model: &Model, opts: &SolveOptions) -> Result<Solution, SolveError>
             MethodUsed::Adaptive => adaptive::propagate(model, &fh, &plan, opts)?,
         }
     };
-    let finite = solution.final_populations.iter().chain(&solution.peak_populations).all(|p| p.is_finite())
+    let finite = solution
+        .final_populations
+        .iter()
+        .chain(&solution.peak_populations)
+        .all(|p| p.is_finite())
         && solution.lost.is_finite()
         && solution.norm_error.is_finite()
-        && solution.samples.iter().all(|(t, p)| t.is_finite() && p.iter().all(|x| x.is_finite()));
+        && solution
+            .samples
+            .iter()
+            .all(|(t, p)| t.is_finite() && p.iter().all(|x| x.is_finite()));
     if !finite {
-        return Err(SolveError::NonFinite { stage: "the solution".into() });
+        return Err(SolveError::NonFinite {
+            stage: "the solution".into(),
+        });
     }
     Ok(solution)
 }
 
 /// An empty window: the initial populations.
-fn trivial(model: &Model, fh: &FrameHamiltonian, plan: &plan::Plan, method: MethodUsed) -> Solution {
+fn trivial(
+    model: &Model,
+    fh: &FrameHamiltonian,
+    plan: &plan::Plan,
+    method: MethodUsed,
+) -> Solution {
     let p = model.initial.clone();
     Solution {
         method,
@@ -144,6 +169,8 @@ fn trivial(model: &Model, fh: &FrameHamiltonian, plan: &plan::Plan, method: Meth
         rtol: model.solver.rtol,
         atol: model.solver.atol,
         excluded_drives: fh.excluded.clone(),
-        samples: (0..plan.samples).map(|_| (model.window.end, p.clone())).collect(),
+        samples: (0..plan.samples)
+            .map(|_| (model.window.end, p.clone()))
+            .collect(),
     }
 }

@@ -99,7 +99,11 @@ impl Plan {
             stops.push(end);
             sample_at.push(None);
         }
-        Plan { stops, sample_at, samples }
+        Plan {
+            stops,
+            sample_at,
+            samples,
+        }
     }
 
     /// Number of segments.
@@ -138,8 +142,16 @@ impl<'a> Piece<'a> {
                 }
                 let i = times[..n].partition_point(|&x| x <= mid).clamp(1, n - 1);
                 let (t0, t1) = (times[i - 1], times[i]);
-                let slope = if t1 > t0 { (values[i] - values[i - 1]) / (t1 - t0) } else { 0.0 };
-                Piece::Linear { t0, v0: values[i - 1], slope }
+                let slope = if t1 > t0 {
+                    (values[i] - values[i - 1]) / (t1 - t0)
+                } else {
+                    0.0
+                };
+                Piece::Linear {
+                    t0,
+                    v0: values[i - 1],
+                    slope,
+                }
             }
             Envelope::Sin2 { .. } | Envelope::Blackman { .. } => {
                 let (a, b) = e.support();
@@ -215,12 +227,21 @@ const REFINE_MARGIN: f64 = 1e-3;
 fn hermite(th: f64) -> [f64; 4] {
     let t2 = th * th;
     let t3 = t2 * th;
-    [2.0 * t3 - 3.0 * t2 + 1.0, t3 - 2.0 * t2 + th, -2.0 * t3 + 3.0 * t2, t3 - t2]
+    [
+        2.0 * t3 - 3.0 * t2 + 1.0,
+        t3 - 2.0 * t2 + th,
+        -2.0 * t3 + 3.0 * t2,
+        t3 - t2,
+    ]
 }
 
 impl PeakTracker {
     pub fn new(n: usize, trust_interior: bool) -> PeakTracker {
-        PeakTracker { peaks: vec![0.0; n], candidates: Vec::new(), trust_interior }
+        PeakTracker {
+            peaks: vec![0.0; n],
+            candidates: Vec::new(),
+            trust_interior,
+        }
     }
 
     /// Record the populations of a state.
@@ -311,16 +332,18 @@ fn parabola_from_slope(p0: f64, s: f64, p1: f64, x1: f64) -> Option<(f64, f64)> 
         return None;
     }
     let x = -s / (2.0 * c);
-    (x > 0.0 && x < x1).then(|| (x, p0 + 0.5 * s * x))
+    (x > 0.0 && x < x1).then_some((x, p0 + 0.5 * s * x))
 }
 
 #[cfg(test)]
 mod tests {
     use super::*;
 
-    // Cubic Hermite interpolation of e^{-i W t}: the peak of
-    // |cos(W t/2)|^2-like populations is recovered between samples.
-    // (Elementary interpolation error bound (W h)^4/384; common practice, no source.)
+    // Cubic Hermite interpolation: the peak of a population sin^2(W t / 2) is
+    // recovered between samples to the interpolation error bound of the
+    // amplitude, (W' h)^4 / 384 with W' = W / 2 the amplitude's frequency, i.e.
+    // about 2 (0.15)^4 / 384 = 2.6e-6 in the population here (elementary
+    // interpolation error bound; common practice, no source).
     #[test]
     fn tracker_finds_peak_between_samples() {
         // P(t) = sin^2(W t / 2) from amplitude a = sin(W t/2) (real), peak 1 at W t = pi.
@@ -334,8 +357,19 @@ mod tests {
             tr.step(&amp(t), &der(t), &amp(t + h), &der(t + h), h);
             t += h;
         }
-        assert!((tr.peaks[0] - 1.0).abs() < 1e-6, "{}", tr.peaks[0]);
-        assert!(tr.peaks[0] <= 1.0 + 1e-9);
+        assert!((tr.peaks[0] - 1.0).abs() < 3e-6, "{}", tr.peaks[0]);
+        assert!(
+            (tr.peaks[0] - 1.0).abs() > 1e-9,
+            "interpolation cannot be exact here"
+        );
+        // Without trusting the interior, the step is handed back for refinement.
+        let mut tr = PeakTracker::new(1, false);
+        tr.point(&amp(2.9));
+        tr.step(&amp(2.9), &der(2.9), &amp(3.2), &der(3.2), 0.3);
+        assert_eq!(tr.candidates.len(), 1);
+        let th = tr.candidates[0].1;
+        assert!((2.9 + 0.3 * th - std::f64::consts::PI).abs() < 1e-3, "{th}");
+        assert!(tr.peaks[0] < 0.999);
     }
 
     #[test]

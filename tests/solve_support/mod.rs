@@ -36,7 +36,10 @@ impl Builder {
                 initial: Vec::new(),
                 targets: Vec::new(),
                 tolerance: DEFAULT_TOLERANCE,
-                window: Window { start: 0.0, end: 1.0 },
+                window: Window {
+                    start: 0.0,
+                    end: 1.0,
+                },
                 solver: SolverSettings::default(),
             },
         }
@@ -56,7 +59,9 @@ impl Builder {
     }
 
     fn idx(&self, id: &str) -> usize {
-        self.m.level_index(id).unwrap_or_else(|| panic!("no level {id}"))
+        self.m
+            .level_index(id)
+            .unwrap_or_else(|| panic!("no level {id}"))
     }
 
     /// A coupling (ordered by energy).
@@ -67,7 +72,11 @@ impl Builder {
         } else {
             (j, i)
         };
-        self.m.couplings.push(Coupling { lower, upper, dipole: Dipole::Relative(1.0) });
+        self.m.couplings.push(Coupling {
+            lower,
+            upper,
+            dipole: Dipole::Relative(1.0),
+        });
         self
     }
 
@@ -113,7 +122,11 @@ impl Builder {
             .position(|c| (c.lower == i && c.upper == j) || (c.lower == j && c.upper == i))
             .unwrap_or_else(|| panic!("no coupling {a}-{b}"));
         let field = self.m.fields.iter().position(|x| x.id == f).expect("field");
-        self.m.drives.push(Drive { field, coupling, rabi });
+        self.m.drives.push(Drive {
+            field,
+            coupling,
+            rabi,
+        });
         self
     }
 
