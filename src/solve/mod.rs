@@ -8,7 +8,14 @@
 //!
 //! INTERFACE FROZEN: fields may be added, none renamed or removed.
 
-use crate::model::Model;
+pub mod adaptive;
+mod exact;
+mod plan;
+
+pub use exact::PEAK_TOLERANCE;
+
+use crate::hamiltonian::{AssemblyError, FrameHamiltonian};
+use crate::model::{Method, Model};
 
 /// Which propagator produced a solution.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -80,10 +87,90 @@ pub enum SolveError {
     NonFinite { stage: String },
     #[error("integrator failed: {0}")]
     Integrator(String),
+    #[error("the model cannot be propagated: {reason}")]
+    InvalidModel { reason: String },
 }
 
 /// Propagate the model over its window with the method its settings ask for.
+///
+/// `method: auto` runs the exact propagator where the frame Hamiltonian is
+/// piecewise constant and the adaptive one otherwise; `exact` fails with
+/// [`SolveError::ExactNotApplicable`] where it does not apply. Populations are
+/// bare-basis |c_k|^2 whatever frame the solver uses.
 pub fn solve(model: &Model, opts: &SolveOptions) -> Result<Solution, SolveError> {
-    let _ = (model, opts);
-    Err(SolveError::Integrator("not built yet".into()))
+    let fh = FrameHamiltonian::build(model).map_err(|e| match e {
+        AssemblyError::NonFinite(what) => SolveError::NonFinite {
+            stage: format!("Hamiltonian assembly ({what})"),
+        },
+        AssemblyError::Inconsistent(reason) => SolveError::InvalidModel { reason },
+    })?;
+    let (rtol, atol) = (model.solver.rtol, model.solver.atol);
+    if !(rtol.is_finite() && rtol > 0.0 && atol.is_finite() && atol > 0.0) {
+        return Err(SolveError::InvalidModel {
+            reason: format!(
+                "tolerances must be positive and finite (rtol {rtol:e}, atol {atol:e})"
+            ),
+        });
+    }
+    let obstacle = fh.piecewise_constant_obstacle(model);
+    let method = match (model.solver.method, &obstacle) {
+        (Method::Exact, Some(reason)) => {
+            return Err(SolveError::ExactNotApplicable {
+                reason: reason.clone(),
+            })
+        }
+        (Method::Exact, None) | (Method::Auto, None) => MethodUsed::Exact,
+        (Method::Adaptive, _) | (Method::Auto, Some(_)) => MethodUsed::Adaptive,
+    };
+    let plan = plan::Plan::new(model, &fh, opts.samples);
+    let solution = if fh.duration == 0.0 {
+        trivial(model, &fh, &plan, method)
+    } else {
+        match method {
+            MethodUsed::Exact => exact::propagate(model, &fh, &plan, opts)?,
+            MethodUsed::Adaptive => adaptive::propagate(model, &fh, &plan, opts)?,
+        }
+    };
+    let finite = solution
+        .final_populations
+        .iter()
+        .chain(&solution.peak_populations)
+        .all(|p| p.is_finite())
+        && solution.lost.is_finite()
+        && solution.norm_error.is_finite()
+        && solution
+            .samples
+            .iter()
+            .all(|(t, p)| t.is_finite() && p.iter().all(|x| x.is_finite()));
+    if !finite {
+        return Err(SolveError::NonFinite {
+            stage: "the solution".into(),
+        });
+    }
+    Ok(solution)
+}
+
+/// An empty window: the initial populations.
+fn trivial(
+    model: &Model,
+    fh: &FrameHamiltonian,
+    plan: &plan::Plan,
+    method: MethodUsed,
+) -> Solution {
+    let p = model.initial.clone();
+    Solution {
+        method,
+        final_populations: p.clone(),
+        peak_populations: p.clone(),
+        lost: 0.0,
+        norm_error: 0.0,
+        steps: 0,
+        evaluations: 0,
+        rtol: model.solver.rtol,
+        atol: model.solver.atol,
+        excluded_drives: fh.excluded.clone(),
+        samples: (0..plan.samples)
+            .map(|_| (model.window.end, p.clone()))
+            .collect(),
+    }
 }
