@@ -39,7 +39,7 @@ levels:
   F1p: {{ energy: "384227691.603 MHz" }}
 initial: F2
 targets: [F3p]
-tolerance: 1e-3
+tolerance: 1e-4
 couplings:
   - {{ between: [F2, F3p], dipole: 1.0 }}
   - {{ between: [F2, F2p], dipole: 0.6 }}
@@ -62,7 +62,7 @@ fn short_pi_pulse_leak_is_attributed_to_the_f2_prime_drive_at_266_65_mhz() {
     assert_eq!(f2p.role, Role::Spectator);
     assert!(
         f2p.flagged,
-        "F'=2 should leak above 1e-3 with a 20 ns square pulse: {}",
+        "F'=2 should leak above 1e-4 with a 20 ns square pulse: {}",
         f2p.final_population
     );
     let top = &f2p.sources[0];
@@ -119,8 +119,12 @@ fields:
         let exact = e.final_population;
         let rel = (exact - p1).abs() / p1;
         scaled.push(rel / p1);
-        // The exact value itself against the Rabi formula.
-        let (om, de, t) = (2.0 * PI * rabi_khz * 1e3, 2.0 * PI * 7.3e6, 1e-6);
+        // The exact value itself against the Rabi formula, at the model's own
+        // detuning (omega_L - omega_ab carries ~0.5 rad/s of rounding from the
+        // optical frequencies, which moves P by ~1e-9).
+        let de = e.sources[0].detuning;
+        assert!((de / (2.0 * PI) - 7.3e6).abs() < 1.0);
+        let (om, t) = (2.0 * PI * rabi_khz * 1e3, 1e-6);
         let w = (om * om + de * de).sqrt();
         let rabi = om * om / (w * w) * (w * t / 2.0).sin().powi(2);
         assert!((exact - rabi).abs() < 1e-9, "{exact} vs {rabi}");
