@@ -207,6 +207,19 @@ fn check_model(model: &Model) -> Result<(), AssemblyError> {
         }
     }
     for f in &model.fields {
+        let e = &f.envelope;
+        let (a, b) = e.support();
+        finite(
+            e.value(e.center()) + e.area() + a + b + e.shortest_feature(),
+            || format!("envelope of field '{}'", f.id),
+        )?;
+        if e.shortest_feature() <= 0.0 {
+            return Err(AssemblyError::Inconsistent(format!(
+                "the {} envelope of field '{}' has no duration",
+                e.shape_name(),
+                f.id
+            )));
+        }
         finite(f.omega, || format!("frequency of field '{}'", f.id))?;
         finite(f.chirp, || format!("chirp of field '{}'", f.id))?;
         finite(f.phase, || format!("phase of field '{}'", f.id))?;

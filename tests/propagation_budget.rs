@@ -58,7 +58,7 @@ fn step_budget_fails_fast_naming_the_drive() {
 }
 
 // The budget is also enforced while running (the estimate before the run is
-// deliberately optimistic): ten Rabi periods need well over 50 steps.
+// deliberately optimistic): ten Rabi periods are estimated at about 85 steps but take about 170.
 #[test]
 fn step_budget_is_enforced_during_the_run() {
     let mut m = two_level(W_E, tau(10e6), tau(2e6), 1e-6);
@@ -69,13 +69,13 @@ fn step_budget_is_enforced_during_the_run() {
         &m,
         &SolveOptions {
             samples: 0,
-            step_budget: 60,
+            step_budget: 90,
         },
     )
     .expect_err("must fail");
     match err {
         SolveError::StepBudget { budget, cause, .. } => {
-            assert_eq!(budget, 60);
+            assert_eq!(budget, 90);
             assert!(
                 cause.contains("'L' on g-e") && cause.contains("stopped at t ="),
                 "{cause}"

@@ -37,6 +37,7 @@ fn exact_matches_detuned_rabi_formula() {
             "{} vs {p}",
             s.final_populations[1]
         );
+        eprintln!("exact err {:e}", s.final_populations[1] - p);
         assert!((s.final_populations[0] - (1.0 - p)).abs() < 1e-9);
         assert!(s.norm_error < 1e-10, "norm error {}", s.norm_error);
         assert_eq!(s.lost, 0.0);

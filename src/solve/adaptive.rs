@@ -62,6 +62,29 @@ impl<R: AutonomousRhs> System<f64, DVector<f64>> for Autonomous<'_, R> {
     }
 }
 
+/// Points per step of the dense output used to locate peaks.
+const DENSE_POINTS: usize = 32;
+
+/// Largest value of evenly spaced samples, refined by a parabola through the
+/// highest sample and its neighbours.
+fn sampled_max(p: &[f64]) -> f64 {
+    let mut j = 0;
+    for (i, v) in p.iter().enumerate() {
+        if *v > p[j] {
+            j = i;
+        }
+    }
+    let mut best = p[j];
+    if j > 0 && j + 1 < p.len() {
+        let den = p[j - 1] - 2.0 * p[j] + p[j + 1];
+        if den < 0.0 {
+            let u = (0.5 * (p[j - 1] - p[j + 1]) / den).clamp(-1.0, 1.0);
+            best = best.max(p[j] - 0.25 * (p[j - 1] - p[j + 1]) * u);
+        }
+    }
+    best
+}
+
 /// A read-only autonomous view of a right-hand side (no step hook).
 struct EvalOnly<'a, R: AutonomousRhs> {
     rhs: &'a R,
@@ -313,19 +336,20 @@ impl<'a> SchrodingerRhs<'a> {
         self.prev_dy = dy;
     }
 
-    /// Population of level k at prev_s + dt, integrated from the last
-    /// accepted state (None if the short integration fails).
-    fn population_inside(&mut self, k: usize, dt: f64) -> Option<f64> {
+    /// Redo the last accepted step (from prev_s, prev_y, length h) in one
+    /// Dop853 step with dense output; the states at DENSE_POINTS + 1 evenly
+    /// spaced points (None if the integration fails).
+    fn dense_step(&self, h: f64) -> Option<Vec<DVector<f64>>> {
         let n = self.prev_y.len();
         let mut state = DVector::from_element(n + 1, 0.0);
         state.as_mut_slice()[..n].copy_from_slice(&self.prev_y);
         state[n] = self.prev_s;
-        let system = EvalOnly { rhs: &*self };
+        let system = EvalOnly { rhs: self };
         let mut stepper = Dop853::from_param(
             system,
             self.prev_s,
-            self.prev_s + dt,
-            dt,
+            self.prev_s + h,
+            h / DENSE_POINTS as f64,
             state,
             self.rtol,
             self.atol,
@@ -333,17 +357,15 @@ impl<'a> SchrodingerRhs<'a> {
             0.0,
             0.333,
             6.0,
-            dt,
-            dt,
-            1000,
+            h,
+            h,
+            64,
             u32::MAX,
-            OutputType::Sparse,
+            OutputType::Dense,
         );
         stepper.integrate().ok()?;
-        let y = stepper.y_out().last()?;
-        let (re, im) = (y[2 * k], y[2 * k + 1]);
-        let q = re * re + im * im;
-        q.is_finite().then_some(q)
+        let ys = stepper.y_out().clone();
+        (ys.len() >= 3 && ys.iter().all(|y| y.iter().all(|v| v.is_finite()))).then_some(ys)
     }
 
     fn norm(&self, y: &[f64]) -> f64 {
@@ -398,16 +420,21 @@ impl AutonomousRhs for SchrodingerRhs<'_> {
         let h = s - self.prev_s;
         self.tracker.step(&self.prev_y, &self.prev_dy, y, dy, h);
         self.tracker.point(y);
-        // Interior maxima that may reach the running peak: recompute the state
-        // there by integrating from the step start at the run's tolerances.
+        // Interior maxima that may reach the running peak: redo the step with
+        // Dop853's 7th-order dense output at DENSE_POINTS points and take the
+        // maximum there (parabola through the three highest points).
         let mut cands = std::mem::take(&mut self.tracker.candidates);
-        for &(k, th) in &cands {
-            let dt = th * h;
-            if dt <= 1e-12 * h.abs().max(1e-300) {
-                continue;
-            }
-            if let Some(q) = self.population_inside(k, dt) {
-                self.tracker.value(k, q);
+        if !cands.is_empty() {
+            cands.sort_unstable_by_key(|c| c.0);
+            cands.dedup_by_key(|c| c.0);
+            if let Some(points) = self.dense_step(h) {
+                for &(k, _) in &cands {
+                    let p: Vec<f64> = points
+                        .iter()
+                        .map(|y| y[2 * k] * y[2 * k] + y[2 * k + 1] * y[2 * k + 1])
+                        .collect();
+                    self.tracker.value(k, sampled_max(&p));
+                }
             }
         }
         cands.clear();
