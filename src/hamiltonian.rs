@@ -293,9 +293,8 @@ impl FrameHamiltonian {
                 for &i in &included {
                     let c = &model.couplings[model.drives[i].coupling];
                     if visited[c.lower] != visited[c.upper]
-                        && best.map_or(true, |b| {
-                            model.drives[i].rabi.abs() > model.drives[b].rabi.abs()
-                        })
+                        && best
+                            .is_none_or(|b| model.drives[i].rabi.abs() > model.drives[b].rabi.abs())
                     {
                         best = Some(i);
                     }
@@ -479,7 +478,7 @@ impl FrameHamiltonian {
         let mut best: Option<FastestScale> = None;
         let mut consider = |rate: f64, cause: &dyn Fn() -> String| {
             let rate = rate.abs();
-            if rate > 0.0 && best.as_ref().map_or(true, |b| rate > b.rate) {
+            if rate > 0.0 && best.as_ref().is_none_or(|b| rate > b.rate) {
                 best = Some(FastestScale {
                     rate,
                     cause: cause(),
