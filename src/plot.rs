@@ -64,6 +64,61 @@ fn builder<'a, 'b>(
     b
 }
 
+/// Tick label: powers of ten on a log axis, plain decimals otherwise.
+fn axis_label(y: f64, log: bool) -> String {
+    if log {
+        let e = y.log10().round() as i32;
+        if (y.log10() - e as f64).abs() < 1e-6 {
+            return format!("1e{e}");
+        }
+        format!("{y:.0e}")
+    } else {
+        format!("{y:.2}")
+    }
+}
+
+/// The legend: one row per curve (solid or dashed, in its colour), then the tolerance.
+fn legend_column(
+    area: &DrawingArea<SVGBackend, plotters::coord::Shift>,
+    p: &LinePlot,
+) -> Result<(), PlotError> {
+    let font = ("sans-serif", 14).into_font();
+    let mut y = 60;
+    for c in &p.curves {
+        let color = PALETTE[c.color % PALETTE.len()];
+        if c.dashed {
+            for k in 0..3 {
+                area.draw(&PathElement::new(
+                    vec![(10 + 8 * k, y), (15 + 8 * k, y)],
+                    color.stroke_width(2),
+                ))
+                .map_err(perr)?;
+            }
+        } else {
+            area.draw(&PathElement::new(
+                vec![(10, y), (32, y)],
+                color.stroke_width(2),
+            ))
+            .map_err(perr)?;
+        }
+        area.draw(&Text::new(c.name.clone(), (40, y - 7), font.clone()))
+            .map_err(perr)?;
+        y += 20;
+    }
+    if p.tolerance.is_some() {
+        for k in 0..3 {
+            area.draw(&PathElement::new(
+                vec![(10 + 8 * k, y), (14 + 8 * k, y)],
+                BLACK,
+            ))
+            .map_err(perr)?;
+        }
+        area.draw(&Text::new("tolerance", (40, y - 7), font))
+            .map_err(perr)?;
+    }
+    Ok(())
+}
+
 /// Draw a line plot into an SVG document.
 pub fn line_svg(p: &LinePlot) -> Result<String, PlotError> {
     let xs = p
@@ -82,8 +137,12 @@ pub fn line_svg(p: &LinePlot) -> Result<String, PlotError> {
     }
     let mut svg = String::new();
     {
-        let root = SVGBackend::with_string(&mut svg, (900, 560)).into_drawing_area();
-        root.fill(&WHITE).map_err(perr)?;
+        let full = SVGBackend::with_string(&mut svg, (1000, 560)).into_drawing_area();
+        full.fill(&WHITE).map_err(perr)?;
+        // The chart on the left, the legend in its own column on the right,
+        // so no curve is hidden behind it.
+        let (root, side) = full.split_horizontally(820);
+        legend_column(&side, p)?;
         let floor = p.log_floor.max(1e-300);
         let clamp = |y: f64| if p.log_y { y.max(floor) } else { y };
         macro_rules! draw {
@@ -93,6 +152,7 @@ pub fn line_svg(p: &LinePlot) -> Result<String, PlotError> {
                     .configure_mesh()
                     .x_desc(p.x_label.as_str())
                     .y_desc(p.y_label.as_str())
+                    .y_label_formatter(&|y: &f64| axis_label(*y, p.log_y))
                     .draw()
                     .map_err(perr)?;
                 for c in &p.curves {
@@ -106,36 +166,19 @@ pub fn line_svg(p: &LinePlot) -> Result<String, PlotError> {
                     if c.dashed {
                         chart
                             .draw_series(DashedLineSeries::new(pts, 6, 4, style))
-                            .map_err(perr)?
-                            .label(c.name.as_str())
-                            .legend(move |(x, y)| {
-                                PathElement::new(vec![(x, y), (x + 20, y)], color)
-                            });
+                            .map_err(perr)?;
                     } else {
                         chart
                             .draw_series(LineSeries::new(pts, style))
-                            .map_err(perr)?
-                            .label(c.name.as_str())
-                            .legend(move |(x, y)| {
-                                PathElement::new(vec![(x, y), (x + 20, y)], color.stroke_width(2))
-                            });
+                            .map_err(perr)?;
                     }
                 }
                 if let Some(t) = p.tolerance {
                     let line = vec![(x0, clamp(t)), (x1, clamp(t))];
                     chart
                         .draw_series(DashedLineSeries::new(line, 4, 4, BLACK.stroke_width(1)))
-                        .map_err(perr)?
-                        .label("tolerance")
-                        .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], BLACK));
+                        .map_err(perr)?;
                 }
-                chart
-                    .configure_series_labels()
-                    .background_style(WHITE.mix(0.85))
-                    .border_style(BLACK)
-                    .position(SeriesLabelPosition::UpperRight)
-                    .draw()
-                    .map_err(perr)?;
             }};
         }
         if p.log_y {
@@ -154,7 +197,7 @@ pub fn line_svg(p: &LinePlot) -> Result<String, PlotError> {
                 .build_cartesian_2d(x0..x1, 0.0..1.05f64)
                 .map_err(perr)?);
         }
-        root.present().map_err(perr)?;
+        full.present().map_err(perr)?;
     }
     Ok(svg)
 }
