@@ -7,7 +7,7 @@
 
 use crate::error::{Error, EXIT_OK, EXIT_TOLERANCE};
 use crate::estimate;
-use crate::model::Model;
+use crate::model::{Envelope, Model};
 use crate::output::write_atomic;
 use crate::plot::{self, Curve, LinePlot};
 use crate::render::{self, Format};
@@ -102,11 +102,63 @@ pub fn vet_model(
     let sol = solve::solve(model, &SolveOptions::default())?;
     check_solution(&sol)?;
     let est = estimate::estimate(model)?;
-    let rep = report::vet(model, prov, &sol, &est, tolerance)?;
+    let mut rep = report::vet(model, prov, &sol, &est, tolerance)?;
+    check_remedies(model, &mut rep)?;
     if let Some(stage) = rep.first_non_finite() {
         return Err(Error::NonFinite { stage });
     }
     Ok(rep)
+}
+
+/// Check every remedy of the report by exact propagation of the changed
+/// scheme (the estimator's numbers are first order; these are not).
+fn check_remedies(model: &Model, rep: &mut VetReport) -> Result<(), Error> {
+    for (k, row) in rep.levels.iter_mut().enumerate() {
+        let Some(rm) = row.remedy.as_mut() else {
+            continue;
+        };
+        let Some(f) = model.fields.iter().position(|f| f.id == rm.field) else {
+            continue;
+        };
+        let env = &model.fields[f].envelope;
+        let center = env.center();
+        let run = |m: Model| -> Result<f64, Error> {
+            let sol = solve::solve(&m, &SolveOptions::default())?;
+            check_solution(&sol)?;
+            Ok(sol.final_populations[k])
+        };
+        let sigma = crate::model::gaussian_sigma_from_intensity_fwhm(rm.fwhm);
+        rm.exact_gaussian = Some(run(model.with_field_envelope(
+            f,
+            Envelope::Gaussian { center, sigma },
+            1.0,
+        ))?);
+        if let Some(frac) = estimate::intensity_fwhm(&Envelope::Blackman {
+            start: 0.0,
+            duration: 1.0,
+        }) {
+            let duration = rm.fwhm / frac;
+            rm.exact_blackman = Some(run(model.with_field_envelope(
+                f,
+                Envelope::Blackman {
+                    start: center - 0.5 * duration,
+                    duration,
+                },
+                1.0,
+            ))?);
+        }
+        if let Some(len) = rm.length_for_tolerance {
+            let s = len / rm.present_length;
+            if s.is_finite() && s > 0.0 {
+                rm.exact_at_length = Some(run(model.with_field_envelope(
+                    f,
+                    env.stretched(s),
+                    1.0 / s,
+                ))?);
+            }
+        }
+    }
+    Ok(())
 }
 
 /// `vet`: the main job. Returns 0 when every spectator is within tolerance, 3 otherwise.
