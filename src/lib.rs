@@ -16,6 +16,8 @@ pub mod output;
 pub mod plot;
 pub mod render;
 pub mod report;
+pub mod scan;
 pub mod scheme;
 pub mod solve;
+pub mod tune;
 pub mod units;
