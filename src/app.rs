@@ -17,6 +17,8 @@ use crate::solve::{self, Solution, SolveOptions};
 use std::io::Write;
 use std::path::{Path, PathBuf};
 
+pub mod scan;
+
 /// Largest accepted norm error |1 - sum P - lost| of a propagation; above it
 /// a run fails instead of reporting.
 pub const NORM_ERROR_LIMIT: f64 = 1e-6;
@@ -109,6 +111,17 @@ pub fn vet_model(
     Ok(rep)
 }
 
+/// Refuse a `--tolerance` outside (0, 1].
+pub fn check_tolerance(tolerance: Option<f64>) -> Result<(), Error> {
+    match tolerance {
+        Some(t) if !(t.is_finite() && t > 0.0 && t <= 1.0) => Err(Error::BadArgument {
+            what: "--tolerance".into(),
+            message: format!("expected a population in (0, 1], found {t}"),
+        }),
+        _ => Ok(()),
+    }
+}
+
 /// `vet`: the main job. Returns 0 when every spectator is within tolerance, 3 otherwise.
 pub fn vet(
     scheme_path: &Path,
@@ -116,14 +129,7 @@ pub fn vet(
     format: Format,
     sink: &Sink,
 ) -> Result<i32, Error> {
-    if let Some(t) = tolerance {
-        if !(t.is_finite() && t > 0.0 && t <= 1.0) {
-            return Err(Error::BadArgument {
-                what: "--tolerance".into(),
-                message: format!("expected a population in (0, 1], found {t}"),
-            });
-        }
-    }
+    check_tolerance(tolerance)?;
     let (model, prov) = load(scheme_path)?;
     let rep = vet_model(&model, prov, tolerance)?;
     let exporter = render::exporter(format, color(sink));
@@ -213,6 +219,7 @@ pub fn evolve(scheme_path: &Path, opts: &EvolveOptions) -> Result<i32, Error> {
             title: model.title.clone().unwrap_or_else(|| "Populations".into()),
             x_label: format!("time ({unit})"),
             x_scale: scale,
+            log_x: false,
             y_label: "population".into(),
             curves,
             log_y: opts.log,
