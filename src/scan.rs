@@ -193,6 +193,26 @@ impl VarySpec {
     }
 }
 
+impl VarySpec {
+    /// The spacing of this range with `--log` (all axes) or `:log` (this
+    /// one); log spacing needs positive START and END.
+    pub fn spacing(&self, log: bool) -> Result<Spacing, Error> {
+        if !(log || self.log) {
+            return Ok(Spacing::Linear);
+        }
+        if !(self.start > 0.0 && self.end > 0.0) {
+            return Err(bad(
+                &format!("--vary {}", self.path),
+                format!(
+                    "log spacing needs positive START and END, found {} and {}",
+                    self.start, self.end
+                ),
+            ));
+        }
+        Ok(Spacing::Log)
+    }
+}
+
 /// One varied value of the scheme: a path, the unit its numbers are written
 /// in (empty for a bare number), and the values it takes.
 #[derive(Debug, Clone, PartialEq)]
@@ -221,20 +241,7 @@ impl Axis {
             (Some(u), false) => u.clone(),
             (None, _) => scheme_unit.to_string(),
         };
-        let spacing = if log || spec.log {
-            if !(spec.start > 0.0 && spec.end > 0.0) {
-                return Err(bad(
-                    &what,
-                    format!(
-                        "log spacing needs positive START and END, found {} and {}",
-                        spec.start, spec.end
-                    ),
-                ));
-            }
-            Spacing::Log
-        } else {
-            Spacing::Linear
-        };
+        let spacing = spec.spacing(log)?;
         if count == 0 {
             return Err(bad(&what, "COUNT must be at least 1"));
         }
@@ -286,6 +293,27 @@ impl Axis {
     }
 }
 
+/// The number of points of a grid with these axis counts; refuses more than
+/// [`MAX_POINTS`] unless `force`, and any product that overflows.
+pub fn check_size(counts: impl IntoIterator<Item = usize>, force: bool) -> Result<usize, Error> {
+    let total = counts
+        .into_iter()
+        .try_fold(1usize, |acc, n| acc.checked_mul(n))
+        .ok_or_else(|| {
+            bad(
+                "--vary",
+                "the grid has more points than this machine can count",
+            )
+        })?;
+    if total > MAX_POINTS && !force {
+        return Err(bad(
+            "--vary",
+            format!("the grid has {total} points, more than the limit of {MAX_POINTS}; pass --force to run it anyway"),
+        ));
+    }
+    Ok(total)
+}
+
 /// A grid of points: the product of the axes, row-major with the last axis
 /// varying fastest.
 #[derive(Debug, Clone, PartialEq)]
@@ -300,21 +328,7 @@ impl Grid {
         if axes.is_empty() {
             return Err(bad("--vary", "at least one --vary is needed"));
         }
-        let total = axes
-            .iter()
-            .try_fold(1usize, |acc, a| acc.checked_mul(a.count))
-            .ok_or_else(|| {
-                bad(
-                    "--vary",
-                    "the grid has more points than this machine can count",
-                )
-            })?;
-        if total > MAX_POINTS && !force {
-            return Err(bad(
-                "--vary",
-                format!("the grid has {total} points, more than the limit of {MAX_POINTS}; pass --force to run it anyway"),
-            ));
-        }
+        check_size(axes.iter().map(|a| a.count), force)?;
         Ok(Grid { axes })
     }
 

@@ -409,17 +409,23 @@ pub fn run_plan(
     }
 }
 
-fn parse_specs(texts: &[String], count_required: bool) -> Result<Vec<VarySpec>, Error> {
+/// Parse the `--vary` texts and check what needs no scheme (form, COUNT,
+/// positivity of log ranges).
+fn parse_specs(texts: &[String], count_required: bool, log: bool) -> Result<Vec<VarySpec>, Error> {
     if texts.is_empty() {
         return Err(bad(
             "--vary",
             "at least one --vary PATH=START..END:COUNT is needed",
         ));
     }
-    texts
+    let specs = texts
         .iter()
         .map(|t| VarySpec::parse(t, count_required))
-        .collect()
+        .collect::<Result<Vec<_>, _>>()?;
+    for s in &specs {
+        s.spacing(log)?;
+    }
+    Ok(specs)
 }
 
 /// `scan`: every point of the grid (or of one shard), CSV in grid order,
@@ -427,7 +433,8 @@ fn parse_specs(texts: &[String], count_required: bool) -> Result<Vec<VarySpec>, 
 pub fn scan(opts: &ScanOptions) -> Result<i32, Error> {
     // Everything that can be refused is refused before a file is touched.
     check_tolerance(opts.tolerance)?;
-    let specs = parse_specs(&opts.vary, true)?;
+    let specs = parse_specs(&opts.vary, true, opts.log)?;
+    grid::check_size(specs.iter().map(|s| s.count.unwrap_or(1)), opts.force)?;
     let shard = opts.shard.as_deref().map(Shard::parse).transpose()?;
     let pool = grid::thread_pool(opts.jobs)?;
     if opts.resume && opts.out.is_none() {
@@ -543,7 +550,7 @@ pub fn scan_plot(
                 x_label: fmt::axis_label(a),
                 x_scale: 1.0,
                 log_x: a.spacing == Spacing::Log,
-                y_label: "final population (dashed: perturbative estimate)".into(),
+                y_label: "final population".into(),
                 curves,
                 log_y,
                 log_floor: LOG_FLOOR,
@@ -712,7 +719,7 @@ pub fn tune(opts: &TuneOptions) -> Result<i32, Error> {
             ),
         ));
     }
-    let spec = VarySpec::parse(&opts.vary, false)?;
+    let spec = parse_specs(std::slice::from_ref(&opts.vary), false, opts.log)?.remove(0);
     if spec.count.is_some_and(|n| n < 3) {
         return Err(bad("--vary", "tune needs at least 3 coarse points"));
     }
