@@ -72,6 +72,25 @@ fn builder<'a, 'b>(
     b
 }
 
+/// Tick label: powers of ten as `1e-6` on a logarithmic axis; on a linear
+/// one up to six decimals, or the shortest exponent form for very small or
+/// large numbers.
+fn tick(v: f64, log: bool) -> String {
+    if log {
+        format!("{v:.0e}")
+    } else if v != 0.0 && !(1e-3..1e6).contains(&v.abs()) {
+        format!("{v:e}")
+    } else {
+        let s = format!("{v:.6}");
+        let s = s.trim_end_matches('0').trim_end_matches('.');
+        if s == "-0" {
+            "0".into()
+        } else {
+            s.to_string()
+        }
+    }
+}
+
 /// Draw a line plot into an SVG document.
 pub fn line_svg(p: &LinePlot) -> Result<String, PlotError> {
     let xs = p
@@ -111,6 +130,8 @@ pub fn line_svg(p: &LinePlot) -> Result<String, PlotError> {
                     .configure_mesh()
                     .x_desc(p.x_label.as_str())
                     .y_desc(p.y_label.as_str())
+                    .x_label_formatter(&|v: &f64| tick(*v, p.log_x))
+                    .y_label_formatter(&|v: &f64| tick(*v, p.log_y))
                     .draw()
                     .map_err(perr)?;
                 for c in &p.curves {
@@ -335,6 +356,8 @@ pub fn heatmap_svg(h: &HeatMap) -> Result<String, PlotError> {
                     .disable_mesh()
                     .x_desc(h.x_label.as_str())
                     .y_desc(h.y_label.as_str())
+                    .x_label_formatter(&|v: &f64| tick(*v, h.log_x))
+                    .y_label_formatter(&|v: &f64| tick(*v, h.log_y))
                     .draw()
                     .map_err(perr)?;
                 chart
@@ -398,6 +421,8 @@ pub fn heatmap_svg(h: &HeatMap) -> Result<String, PlotError> {
             .disable_mesh()
             .disable_x_axis()
             .y_desc(format!("log10 {}", h.value_label))
+            .label_style(("sans-serif", 13))
+            .axis_desc_style(("sans-serif", 14))
             .draw()
             .map_err(perr)?;
         let steps = 100;
@@ -428,6 +453,15 @@ pub fn heatmap_svg(h: &HeatMap) -> Result<String, PlotError> {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn tick_labels_are_short() {
+        assert_eq!(tick(1e-6, true), "1e-6");
+        assert_eq!(tick(0.1 + 0.2, false), "0.3");
+        assert_eq!(tick(-80.0, false), "-80");
+        assert_eq!(tick(0.0, false), "0");
+        assert_eq!(tick(2.5e-7, false), "2.5e-7");
+    }
 
     #[test]
     fn cell_edges_are_midpoints_linear_and_geometric() {

@@ -290,12 +290,16 @@ pub fn first_difference<'a>(a: &'a str, b: &'a str) -> Option<(usize, &'a str, &
     }
 }
 
-fn value_with_unit(v: f64, unit: &str) -> String {
+fn with_unit(number: String, unit: &str) -> String {
     if unit.is_empty() {
-        format!("{v:.9e}")
+        number
     } else {
-        format!("{v:.9e} {unit}")
+        format!("{number} {unit}")
     }
+}
+
+fn value_with_unit(v: f64, unit: &str) -> String {
+    with_unit(format!("{v:.9e}"), unit)
 }
 
 /// The text summary of a tune run.
@@ -329,9 +333,9 @@ pub fn tune_text(r: &TuneReport) -> String {
             let half = (f.value - f.lo).abs().max((f.hi - f.value).abs());
             let _ = writeln!(
                 s,
-                "value: {} +- {:.2e} (bracket [{}, {}])",
+                "value: {} +- {} (bracket [{}, {}])",
                 value_with_unit(f.value, &a.unit),
-                half,
+                with_unit(format!("{half:.1e}"), &a.unit),
                 value_with_unit(f.lo, &a.unit),
                 value_with_unit(f.hi, &a.unit)
             );
@@ -477,7 +481,10 @@ mod tests {
         };
         let t = tune_text(&r);
         assert!(t.contains("maximise P(e)"), "{t}");
-        assert!(t.contains("value: 2.500000000e-1 MHz +- 7.50e-1"), "{t}");
+        assert!(
+            t.contains("value: 2.500000000e-1 MHz +- 7.5e-1 MHz (bracket [0.000000000e0 MHz, 1.000000000e0 MHz])"),
+            "{t}"
+        );
         assert!(
             t.contains("P(e) = 1.0000000000e0  [target]  (estimate 1.200000e0)"),
             "{t}"
