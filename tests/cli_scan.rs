@@ -834,3 +834,77 @@ fn help_of_the_new_commands_states_syntax_units_and_examples() {
     ]);
     assert_eq!(o.status.code(), Some(2));
 }
+
+/// The fenced bash block of docs/cluster.md that contains `marker`.
+fn doc_script(doc: &str, marker: &str) -> String {
+    doc.split("```bash\n")
+        .skip(1)
+        .filter_map(|b| b.split("```").next())
+        .find(|b| b.contains(marker))
+        .unwrap_or_else(|| panic!("no bash block with {marker} in docs/cluster.md"))
+        .to_string()
+}
+
+#[test]
+fn cluster_doc_scripts_run_as_a_job_array_here() {
+    let root = Path::new(env!("CARGO_MANIFEST_DIR"));
+    let doc = fs::read_to_string(root.join("docs/cluster.md")).unwrap();
+    // Taken verbatim, with the grid shrunk from 1001 x 2001 to 5 x 7 points.
+    let array = doc_script(&doc, "#SBATCH --array=");
+    let merge = doc_script(&doc, "levelplan merge");
+    let shrink = |s: &str| s.replace(":1001:log", ":5:log").replace(":2001", ":7");
+    let array = shrink(&array);
+    assert!(!array.contains(":1001") && !array.contains(":2001"));
+    let n: usize = array
+        .split("#SBATCH --array=1-")
+        .nth(1)
+        .and_then(|r| r.split_whitespace().next())
+        .and_then(|n| n.parse().ok())
+        .expect("--array=1-N");
+    assert!(
+        array.contains(&format!("N={n}")),
+        "N must equal the array size"
+    );
+
+    let d = TempDir::new("cluster");
+    fs::create_dir_all(d.path("level_schemes")).unwrap();
+    fs::copy(root.join(TWO_LEVEL), d.path(TWO_LEVEL)).unwrap();
+    fs::create_dir_all(d.path("bin")).unwrap();
+    std::os::unix::fs::symlink(env!("CARGO_BIN_EXE_levelplan"), d.path("bin/levelplan")).unwrap();
+    fs::write(d.path("scan_array.sbatch"), &array).unwrap();
+    fs::write(d.path("merge.sbatch"), &merge).unwrap();
+    let path = format!(
+        "{}:{}",
+        d.path("bin").display(),
+        std::env::var("PATH").unwrap_or_default()
+    );
+    let bash = |script: &str, task: Option<usize>| {
+        let mut c = Command::new("bash");
+        c.arg(script).current_dir(&d.0).env("PATH", &path);
+        if let Some(k) = task {
+            c.env("SLURM_ARRAY_TASK_ID", k.to_string())
+                .env("SLURM_CPUS_PER_TASK", "1");
+        }
+        let o = c.output().unwrap();
+        assert!(o.status.success(), "{script} {task:?}: {}", stderr(&o));
+    };
+    // The array tasks in a scrambled order, each its own process.
+    for k in (1..=n)
+        .rev()
+        .step_by(2)
+        .chain((1..=n).rev().skip(1).step_by(2))
+    {
+        bash("scan_array.sbatch", Some(k));
+    }
+    bash("merge.sbatch", None);
+    let whole = ok(&[
+        "scan",
+        TWO_LEVEL,
+        "--vary",
+        "fields.probe.envelope.duration=10ns..1000ns:5:log",
+        "--vary",
+        "fields.probe.tuned.detuning=-100MHz..100MHz:7",
+    ]);
+    assert_eq!(fs::read(d.path("scan.csv")).unwrap(), whole.stdout);
+    assert_eq!(Table::read(&d.path("scan.csv")).rows.len(), 35);
+}
