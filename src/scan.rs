@@ -458,6 +458,11 @@ pub fn merge_order(shards: &[Shard]) -> Result<Vec<usize>, Error> {
     Ok(slot.into_iter().flatten().collect())
 }
 
+/// Lower-case hexadecimal of a digest.
+pub fn hex(bytes: &[u8]) -> String {
+    bytes.iter().map(|b| format!("{b:02x}")).collect()
+}
+
 /// The identity of a scan: SHA-256 (hex) of the scheme bytes, the axes
 /// (path, unit, start, end, count, spacing) and the tolerance override.
 /// Shards of one scan share it; it does not depend on threads or shard.
@@ -484,7 +489,7 @@ pub fn scan_hash(scheme_bytes: &[u8], axes: &[Axis], tolerance: Option<f64>) -> 
             h.update(t.to_bits().to_le_bytes());
         }
     }
-    h.finalize().iter().map(|b| format!("{b:02x}")).collect()
+    hex(&h.finalize())
 }
 
 /// One computed grid point: the varied values (in their axes' units), the

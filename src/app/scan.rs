@@ -95,10 +95,7 @@ impl SchemeText {
             path: path.to_path_buf(),
             source,
         })?;
-        let sha256 = Sha256::digest(&bytes)
-            .iter()
-            .map(|b| format!("{b:02x}"))
-            .collect();
+        let sha256 = grid::hex(&Sha256::digest(&bytes));
         let text = String::from_utf8(bytes).map_err(|_| {
             bad(
                 &path.display().to_string(),
@@ -338,9 +335,12 @@ fn progress_bar(show: bool, len: usize, done: usize) -> indicatif::ProgressBar {
     }
     let bar = indicatif::ProgressBar::new(len as u64);
     if let Ok(style) = indicatif::ProgressStyle::with_template(
-        "{elapsed_precise} [{wide_bar}] {pos}/{len} points, {per_sec}, {eta} left",
+        "{elapsed_precise} [{wide_bar}] {pos}/{len} points, {rate}, {eta} left",
     ) {
-        bar.set_style(style.progress_chars("=> "));
+        let rate = |s: &indicatif::ProgressState, w: &mut dyn std::fmt::Write| {
+            let _ = write!(w, "{:.1} points/s", s.per_sec());
+        };
+        bar.set_style(style.with_key("rate", rate).progress_chars("=> "));
     }
     bar.set_position(done as u64);
     bar
