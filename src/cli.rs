@@ -221,7 +221,7 @@ pub enum Command {
     /// unsharded scan writes, byte for byte. Refuses parts of different scans, a missing
     /// or repeated shard, and a part cut short.
     #[command(
-        after_help = "Example:\n  levelplan merge part_1.csv part_2.csv part_3.csv part_4.csv --out spectrum.csv\n\nExit status: 0 merged, 2 bad or mismatched parts, 1 output not written."
+        after_help = "Example:\n  levelplan merge part_1.csv part_2.csv part_3.csv part_4.csv --out spectrum.csv --plot spectrum.svg\n\nExit status: 0 merged, 2 bad or mismatched parts, 1 output not written."
     )]
     Merge {
         /// Part files, in any order.
@@ -230,6 +230,12 @@ pub enum Command {
         /// Write the merged CSV here (atomically) instead of stdout.
         #[arg(long, value_name = "FILE.csv")]
         out: Option<PathBuf>,
+        /// Also draw the merged scan as `scan --plot` does (1-D and 2-D scans).
+        #[arg(long, value_name = "FILE.svg")]
+        plot: Option<PathBuf>,
+        /// Logarithmic population axis in a 1-D plot.
+        #[arg(long)]
+        log_y: bool,
     },
 }
 
@@ -354,6 +360,11 @@ pub fn run(cli: Cli) -> Result<i32, Error> {
             xtol,
             jobs,
         }),
-        Command::Merge { parts, out } => scan::merge(&parts, &sink(out, ColorArg::Never)),
+        Command::Merge {
+            parts,
+            out,
+            plot,
+            log_y,
+        } => scan::merge(&parts, &sink(out, ColorArg::Never), plot.as_deref(), log_y),
     }
 }

@@ -364,9 +364,12 @@ fn any_thread_count_and_merged_shards_give_the_same_bytes() {
     let merged = d.s("merged.csv");
     let mut args = vec!["merge"];
     args.extend(parts.iter().rev().map(String::as_str));
-    args.extend(["--out", &merged]);
+    let svg = d.s("merged.svg");
+    args.extend(["--out", &merged, "--plot", &svg, "--log-y"]);
     ok(&args);
     assert_eq!(fs::read(&merged).unwrap(), whole);
+    let svg = fs::read_to_string(&svg).unwrap();
+    assert!(svg.contains("P(e)") && svg.contains("est(e)") && svg.contains("tolerance"));
     // A missing part is refused, nothing written.
     let o = run(&[
         "merge",
@@ -906,5 +909,7 @@ fn cluster_doc_scripts_run_as_a_job_array_here() {
         "fields.probe.tuned.detuning=-100MHz..100MHz:7",
     ]);
     assert_eq!(fs::read(d.path("scan.csv")).unwrap(), whole.stdout);
+    let svg = fs::read_to_string(d.path("scan.svg")).unwrap();
+    assert!(svg.contains("largest spectator population"));
     assert_eq!(Table::read(&d.path("scan.csv")).rows.len(), 35);
 }

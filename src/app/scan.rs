@@ -469,6 +469,7 @@ pub fn scan(opts: &ScanOptions) -> Result<i32, Error> {
         provenance: &prov,
         axes: &grid.axes,
         tolerance: opts.tolerance,
+        default_tolerance: model.tolerance,
         points: grid.len(),
         hash: &hash,
         shard,
@@ -495,14 +496,13 @@ pub fn scan(opts: &ScanOptions) -> Result<i32, Error> {
         opts.progress,
     )?;
     if let Some(path) = &opts.plot {
+        let title = model
+            .title
+            .clone()
+            .unwrap_or_else(|| format!("Scan of {}", s.file));
         let tolerance = opts.tolerance.unwrap_or(model.tolerance);
-        let svg = scan_plot(&model, &plan.grid, &level_ids, &rows, tolerance, opts.log_y).map_err(
-            |e| Error::Output {
-                path: path.clone(),
-                source: std::io::Error::other(e),
-            },
-        )?;
-        write_atomic(path, svg.as_bytes())?;
+        let svg = scan_plot(title, &plan.grid, &level_ids, &rows, tolerance, opts.log_y);
+        write_plot(path, svg)?;
     }
     Ok(EXIT_OK)
 }
@@ -511,14 +511,13 @@ pub fn scan(opts: &ScanOptions) -> Result<i32, Error> {
 /// varied value) or a 2-D scan (heat map of the largest spectator
 /// population with the tolerance outline).
 pub fn scan_plot(
-    model: &Model,
+    title: String,
     grid: &Grid,
     level_ids: &[String],
     rows: &[ScanRow],
     tolerance: f64,
     log_y: bool,
 ) -> Result<String, plot::PlotError> {
-    let title = model.title.clone().unwrap_or_else(|| "Scan".into());
     match grid.axes.as_slice() {
         [a] => {
             let mut curves = Vec::new();
@@ -576,9 +575,48 @@ pub fn scan_plot(
     }
 }
 
+fn write_plot(path: &Path, svg: Result<String, plot::PlotError>) -> Result<(), Error> {
+    let svg = svg.map_err(|e| Error::Output {
+        path: path.to_path_buf(),
+        source: std::io::Error::other(e),
+    })?;
+    write_atomic(path, svg.as_bytes())
+}
+
+/// The plot of a whole scan file (a merged scan): axes, tolerance and
+/// levels from its head, rows from its body.
+pub fn plot_scan_text(text: &str, log_y: bool) -> Result<Result<String, plot::PlotError>, Error> {
+    let cannot = |m: String| bad("--plot", format!("cannot plot this scan: {m}"));
+    let t = fmt::split(text).map_err(cannot)?;
+    let info = fmt::read_head(&t).map_err(cannot)?;
+    if info.axes.len() > 2 {
+        return Err(bad("--plot", "plots are drawn for 1-D and 2-D scans only"));
+    }
+    let grid = Grid::new(info.axes, true)?;
+    let rows = t
+        .rows
+        .iter()
+        .map(|l| fmt::parse_row(l, grid.axes.len(), info.level_ids.len()))
+        .collect::<Result<Vec<_>, _>>()
+        .map_err(cannot)?;
+    Ok(scan_plot(
+        format!("Scan of {}", info.scheme_file),
+        &grid,
+        &info.level_ids,
+        &rows,
+        info.tolerance,
+        log_y,
+    ))
+}
+
 /// `merge`: join the part files of a sharded scan into the file the
-/// unsharded scan writes, byte for byte.
-pub fn merge(parts: &[PathBuf], sink: &Sink) -> Result<i32, Error> {
+/// unsharded scan writes, byte for byte; optionally plot the result.
+pub fn merge(
+    parts: &[PathBuf],
+    sink: &Sink,
+    plot: Option<&Path>,
+    log_y: bool,
+) -> Result<i32, Error> {
     let texts = parts
         .iter()
         .map(|p| {
@@ -594,7 +632,14 @@ pub fn merge(parts: &[PathBuf], sink: &Sink) -> Result<i32, Error> {
         })
         .collect::<Result<Vec<String>, Error>>()?;
     let bytes = merge_texts(parts, &texts)?;
+    let svg = match plot {
+        Some(_) => Some(plot_scan_text(&String::from_utf8_lossy(&bytes), log_y)?),
+        None => None,
+    };
     emit(sink, &bytes)?;
+    if let (Some(path), Some(svg)) = (plot, svg) {
+        write_plot(path, svg)?;
+    }
     Ok(EXIT_OK)
 }
 
@@ -871,6 +916,7 @@ mod tests {
             provenance: &prov,
             axes: &grid.axes,
             tolerance: None,
+            default_tolerance: 1e-3,
             points: grid.len(),
             hash: &hash,
             shard,
@@ -940,6 +986,11 @@ mod tests {
             }
             let merged = merge_texts(&names, &texts).unwrap();
             assert_eq!(merged, fs::read(&whole).unwrap(), "n = {n}");
+            // The merged file plots (a 2-D heat map of 7 x 5 cells).
+            let svg = plot_scan_text(&String::from_utf8(merged).unwrap(), false)
+                .unwrap()
+                .unwrap();
+            assert!(svg.matches("<rect").count() >= 35 + 100);
             // A missing shard is refused.
             if n > 1 {
                 let e = merge_texts(&names[1..], &texts[1..]).unwrap_err();

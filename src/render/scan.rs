@@ -8,7 +8,7 @@
 //! open files or print.
 
 use crate::report::Provenance;
-use crate::scan::{Axis, ScanRow, Shard, TuneGoal, TuneReport};
+use crate::scan::{Axis, ScanRow, Shard, Spacing, TuneGoal, TuneReport};
 use std::fmt::Write as _;
 
 /// Comment line carrying the scan hash.
@@ -17,6 +17,10 @@ pub const HASH_PREFIX: &str = "# scan ";
 pub const SHARD_PREFIX: &str = "# shard ";
 /// Comment line carrying the number of grid points.
 pub const GRID_PREFIX: &str = "# grid ";
+/// Comment lines of the varied values.
+pub const VARY_PREFIX: &str = "# vary ";
+/// Comment line of the tolerance.
+pub const TOLERANCE_PREFIX: &str = "# tolerance ";
 
 /// What the head of a scan file states.
 #[derive(Debug, Clone)]
@@ -25,6 +29,8 @@ pub struct ScanHead<'a> {
     pub axes: &'a [Axis],
     /// The `--tolerance` override, if any.
     pub tolerance: Option<f64>,
+    /// The scheme's default tolerance (stated when there is no override).
+    pub default_tolerance: f64,
     pub points: usize,
     pub hash: &'a str,
     pub shard: Option<Shard>,
@@ -80,7 +86,7 @@ pub fn head(h: &ScanHead) -> String {
     for (k, a) in h.axes.iter().enumerate() {
         let _ = writeln!(
             s,
-            "# vary {}: {} from {:e} to {:e}{}{}, {} points, {}",
+            "{VARY_PREFIX}{}: {} from {:e} to {:e}{}{}, {} points, {}",
             k + 1,
             a.path,
             a.start,
@@ -91,17 +97,14 @@ pub fn head(h: &ScanHead) -> String {
             a.spacing.as_str()
         );
     }
-    match h.tolerance {
-        Some(t) => {
-            let _ = writeln!(
-                s,
-                "# tolerance {t:e} (--tolerance; per-level tolerances still apply)"
-            );
-        }
-        None => {
-            let _ = writeln!(s, "# tolerance from the scheme");
-        }
-    }
+    let (t, whence) = match h.tolerance {
+        Some(t) => (t, "--tolerance"),
+        None => (h.default_tolerance, "the scheme's default"),
+    };
+    let _ = writeln!(
+        s,
+        "{TOLERANCE_PREFIX}{t:e} ({whence}; per-level tolerances still apply)"
+    );
     let _ = writeln!(
         s,
         "{GRID_PREFIX}{} points, row-major, the last --vary fastest",
@@ -237,6 +240,85 @@ impl ScanText<'_> {
             .iter()
             .find_map(|c| c.strip_prefix(HASH_PREFIX))
     }
+}
+
+/// What a scan file's head states, read back (to plot a merged scan).
+#[derive(Debug, Clone, PartialEq)]
+pub struct HeadInfo {
+    pub scheme_file: String,
+    pub axes: Vec<Axis>,
+    pub tolerance: f64,
+    pub level_ids: Vec<String>,
+}
+
+fn read_vary(line: &str) -> Option<Axis> {
+    let (_, rest) = line.strip_prefix(VARY_PREFIX)?.split_once(": ")?;
+    let mut tail = rest.rsplitn(3, ", ");
+    let spacing = match tail.next()? {
+        "linear" => Spacing::Linear,
+        "log" => Spacing::Log,
+        _ => return None,
+    };
+    let count = tail.next()?.strip_suffix(" points")?.parse().ok()?;
+    let (path, range) = tail.next()?.split_once(" from ")?;
+    let (start, end_unit) = range.split_once(" to ")?;
+    let (end, unit) = end_unit.split_once(' ').unwrap_or((end_unit, ""));
+    Some(Axis {
+        path: path.to_string(),
+        unit: unit.to_string(),
+        start: start.parse().ok()?,
+        end: end.parse().ok()?,
+        count,
+        spacing,
+    })
+}
+
+/// Read the axes, tolerance, level ids and scheme file back from a head.
+pub fn read_head(t: &ScanText) -> Result<HeadInfo, String> {
+    let scheme_file = t
+        .comments
+        .first()
+        .and_then(|c| c.split_once("; scheme "))
+        .and_then(|(_, r)| r.rsplit_once(" sha256 "))
+        .map(|(f, _)| f.to_string())
+        .ok_or("no scheme line")?;
+    let axes = t
+        .comments
+        .iter()
+        .filter(|c| c.starts_with(VARY_PREFIX))
+        .map(|c| read_vary(c).ok_or_else(|| format!("cannot read '{c}'")))
+        .collect::<Result<Vec<_>, _>>()?;
+    let tolerance = t
+        .comments
+        .iter()
+        .find_map(|c| c.strip_prefix(TOLERANCE_PREFIX))
+        .and_then(|r| r.split_whitespace().next())
+        .and_then(|v| v.parse::<f64>().ok())
+        .ok_or("no tolerance line")?;
+    if t.header.contains('"') {
+        return Err("quoted column names".into());
+    }
+    let level_ids = t
+        .header
+        .split(',')
+        .skip(axes.len())
+        .take_while(|c| *c != "max_spectator")
+        .map(|c| {
+            c.strip_prefix("P(")
+                .and_then(|c| c.strip_suffix(')'))
+                .map(String::from)
+                .ok_or_else(|| format!("unexpected column '{c}'"))
+        })
+        .collect::<Result<Vec<_>, _>>()?;
+    if axes.is_empty() || level_ids.is_empty() {
+        return Err("no varied value or no level".into());
+    }
+    Ok(HeadInfo {
+        scheme_file,
+        axes,
+        tolerance,
+        level_ids,
+    })
 }
 
 /// Cut a scan file into comments, header and complete rows.
@@ -378,7 +460,7 @@ pub fn tune_text(r: &TuneReport) -> String {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::scan::{Spacing, TuneFound};
+    use crate::scan::TuneFound;
 
     fn axes() -> Vec<Axis> {
         vec![Axis {
@@ -400,6 +482,7 @@ mod tests {
             provenance: &prov,
             axes: &ax,
             tolerance: None,
+            default_tolerance: 1e-3,
             points: 3,
             hash: "f00d",
             shard: Some(Shard { k: 2, n: 4 }),
@@ -419,6 +502,15 @@ mod tests {
         assert!(parsed.rows.is_empty() && parsed.tail.is_empty());
         assert_eq!(parsed.body_start, text.len());
         assert_eq!(parsed.common_comments().len(), parsed.comments.len() - 1);
+        assert!(text.contains(
+            "\n# tolerance 1e-3 (the scheme's default; per-level tolerances still apply)\n"
+        ));
+        // The head reads back to what it states.
+        let info = read_head(&parsed).unwrap();
+        assert_eq!(info.axes, ax);
+        assert_eq!(info.level_ids, ids);
+        assert_eq!(info.tolerance, 1e-3);
+        assert_eq!(info.scheme_file, "demo.yaml");
     }
 
     #[test]
