@@ -328,6 +328,12 @@ impl Grid {
         if axes.is_empty() {
             return Err(bad("--vary", "at least one --vary is needed"));
         }
+        if let Some(a) = axes.iter().find(|a| a.count == 0) {
+            return Err(bad(
+                &format!("--vary {}", a.path),
+                "COUNT must be at least 1",
+            ));
+        }
         check_size(axes.iter().map(|a| a.count), force)?;
         Ok(Grid { axes })
     }

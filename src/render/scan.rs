@@ -259,7 +259,12 @@ fn read_vary(line: &str) -> Option<Axis> {
         "log" => Spacing::Log,
         _ => return None,
     };
-    let count = tail.next()?.strip_suffix(" points")?.parse().ok()?;
+    let count = tail
+        .next()?
+        .strip_suffix(" points")?
+        .parse()
+        .ok()
+        .filter(|&n: &usize| n > 0)?;
     let (path, range) = tail.next()?.split_once(" from ")?;
     let (start, end_unit) = range.split_once(" to ")?;
     let (end, unit) = end_unit.split_once(' ').unwrap_or((end_unit, ""));
