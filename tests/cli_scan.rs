@@ -466,20 +466,18 @@ fn data_rows(path: &Path) -> usize {
 #[test]
 fn a_killed_scan_resumes_to_the_same_bytes() {
     let d = TempDir::new("kill");
-    // Size the scan to take about two seconds on one thread here.
+    // Size the scan to take about two seconds on one thread here: the time
+    // per point from two scans of different length (start-up cancels).
     let probe_out = d.s("probe.csv");
-    let started = Instant::now();
-    ok(&[
-        "scan",
-        TWO_LEVEL,
-        "--vary",
-        &format!("{DETUNING}=-20MHz..20MHz:40"),
-        "--jobs",
-        "1",
-        "--out",
-        &probe_out,
-    ]);
-    let per_point = started.elapsed().as_secs_f64() / 40.0;
+    let time = |n: usize| {
+        let started = Instant::now();
+        let vary = format!("{DETUNING}=-20MHz..20MHz:{n}");
+        ok(&[
+            "scan", TWO_LEVEL, "--vary", &vary, "--jobs", "1", "--out", &probe_out,
+        ]);
+        started.elapsed().as_secs_f64()
+    };
+    let per_point = ((time(200) - time(20)) / 180.0).max(1e-6);
     let count = ((2.0 / per_point) as usize).clamp(200, 200_000);
     let vary = format!("{DETUNING}=-20MHz..20MHz:{count}");
     let reference = d.s("reference.csv");
