@@ -17,6 +17,8 @@ use crate::solve::{self, Solution, SolveOptions};
 use std::io::Write;
 use std::path::{Path, PathBuf};
 
+pub mod scan;
+
 /// Largest accepted norm error |1 - sum P - lost| of a propagation; above it
 /// a run fails instead of reporting.
 pub const NORM_ERROR_LIMIT: f64 = 1e-6;
@@ -102,8 +104,7 @@ pub fn vet_model(
     let sol = solve::solve(model, &SolveOptions::default())?;
     check_solution(&sol)?;
     let est = estimate::estimate(model)?;
-    let mut rep = report::vet(model, prov, &sol, &est, tolerance)?;
-    check_remedies(model, &mut rep)?;
+    let rep = report::vet(model, prov, &sol, &est, tolerance)?;
     if let Some(stage) = rep.first_non_finite() {
         return Err(Error::NonFinite { stage });
     }
@@ -111,7 +112,8 @@ pub fn vet_model(
 }
 
 /// Check every remedy of the report by exact propagation of the changed
-/// scheme (the estimator's numbers are first order; these are not).
+/// scheme (the estimator's numbers are first order; these are not). Run by
+/// `vet` only: a scan point does not need remedies checked.
 fn check_remedies(model: &Model, rep: &mut VetReport) -> Result<(), Error> {
     for (k, row) in rep.levels.iter_mut().enumerate() {
         let Some(rm) = row.remedy.as_mut() else {
@@ -161,6 +163,17 @@ fn check_remedies(model: &Model, rep: &mut VetReport) -> Result<(), Error> {
     Ok(())
 }
 
+/// Refuse a `--tolerance` outside (0, 1].
+pub fn check_tolerance(tolerance: Option<f64>) -> Result<(), Error> {
+    match tolerance {
+        Some(t) if !(t.is_finite() && t > 0.0 && t <= 1.0) => Err(Error::BadArgument {
+            what: "--tolerance".into(),
+            message: format!("expected a population in (0, 1], found {t}"),
+        }),
+        _ => Ok(()),
+    }
+}
+
 /// `vet`: the main job. Returns 0 when every spectator is within tolerance, 3 otherwise.
 pub fn vet(
     scheme_path: &Path,
@@ -168,16 +181,13 @@ pub fn vet(
     format: Format,
     sink: &Sink,
 ) -> Result<i32, Error> {
-    if let Some(t) = tolerance {
-        if !(t.is_finite() && t > 0.0 && t <= 1.0) {
-            return Err(Error::BadArgument {
-                what: "--tolerance".into(),
-                message: format!("expected a population in (0, 1], found {t}"),
-            });
-        }
-    }
+    check_tolerance(tolerance)?;
     let (model, prov) = load(scheme_path)?;
-    let rep = vet_model(&model, prov, tolerance)?;
+    let mut rep = vet_model(&model, prov, tolerance)?;
+    check_remedies(&model, &mut rep)?;
+    if let Some(stage) = rep.first_non_finite() {
+        return Err(Error::NonFinite { stage });
+    }
     let exporter = render::exporter(format, color(sink));
     let bytes = render_to_vec(|w| exporter.vet(&rep, w))?;
     emit(sink, &bytes)?;
@@ -265,6 +275,7 @@ pub fn evolve(scheme_path: &Path, opts: &EvolveOptions) -> Result<i32, Error> {
             title: model.title.clone().unwrap_or_else(|| "Populations".into()),
             x_label: format!("time ({unit})"),
             x_scale: scale,
+            log_x: false,
             y_label: "population".into(),
             curves,
             log_y: opts.log,
