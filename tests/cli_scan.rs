@@ -15,7 +15,7 @@ use std::process::{Command, Output, Stdio};
 use std::sync::atomic::{AtomicUsize, Ordering};
 use std::time::{Duration, Instant};
 
-const TWO_LEVEL: &str = "level_schemes/two_level_calibration.yaml";
+const TWO_LEVEL: &str = "tests/fixtures/two_level_scan.yaml";
 const HYPERFINE: &str = "level_schemes/hyperfine_manifold.yaml";
 const DETUNING: &str = "fields.probe.tuned.detuning";
 const DURATION: &str = "fields.probe.envelope.duration";
@@ -868,8 +868,11 @@ fn cluster_doc_scripts_run_as_a_job_array_here() {
     );
 
     let d = TempDir::new("cluster");
+    // The doc's scripts name the shipped calibration demo.
+    const DEMO: &str = "level_schemes/two_level_calibration.yaml";
+    assert!(array.contains(DEMO));
     fs::create_dir_all(d.path("level_schemes")).unwrap();
-    fs::copy(root.join(TWO_LEVEL), d.path(TWO_LEVEL)).unwrap();
+    fs::copy(root.join(DEMO), d.path(DEMO)).unwrap();
     fs::create_dir_all(d.path("bin")).unwrap();
     std::os::unix::fs::symlink(env!("CARGO_BIN_EXE_levelplan"), d.path("bin/levelplan")).unwrap();
     fs::write(d.path("scan_array.sbatch"), &array).unwrap();
@@ -900,7 +903,7 @@ fn cluster_doc_scripts_run_as_a_job_array_here() {
     bash("merge.sbatch", None);
     let whole = ok(&[
         "scan",
-        TWO_LEVEL,
+        DEMO,
         "--vary",
         "fields.probe.envelope.duration=10ns..1000ns:5:log",
         "--vary",
