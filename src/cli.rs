@@ -4,6 +4,7 @@
 //! Owns: argument names, help texts, defaults. Must not: read schemes or
 //! compute anything; every command is one call into the app layer.
 
+use crate::app::scan::{self, ScanOptions, TuneOptions};
 use crate::app::{self, EvolveOptions, Sink};
 use crate::error::Error;
 use crate::render::Format;
@@ -123,7 +124,150 @@ pub enum Command {
         #[arg(long)]
         log: bool,
     },
+    /// Parameter scan: a full exact + perturbative run at every point of a grid of scheme
+    /// values; CSV rows in grid order (one column per varied path with its unit, P(<level>)
+    /// per level, max_spectator, flagged, est(<level>) per level), optionally a plot.
+    #[command(after_help = SCAN_HELP)]
+    Scan {
+        /// Scheme file (YAML).
+        scheme: PathBuf,
+        /// PATH=START..END:COUNT[:log]. PATH is the dot path of a number in the scheme
+        /// (fields.probe.tuned.detuning, fields.probe.envelope.duration, levels.e2.energy);
+        /// START and END carry a unit of the same dimension as the scheme's value there
+        /// ("-50MHz" or "-50 MHz"; no unit: the scheme's unit). COUNT >= 1 points, END
+        /// included. Repeat for a grid: the first --vary varies slowest, the last fastest.
+        #[arg(long = "vary", value_name = "PATH=START..END:COUNT", required = true)]
+        vary: Vec<String>,
+        /// Logarithmic spacing on every axis (START and END positive); per axis: ":log".
+        #[arg(long)]
+        log: bool,
+        /// Spectator tolerance (population in (0, 1]) for the flagged and max_spectator
+        /// columns and the plot; per-level tolerances still apply. Default: the scheme's.
+        #[arg(long, value_name = "POPULATION")]
+        tolerance: Option<f64>,
+        /// Write the CSV here (progressively to .FILE.partial, renamed when complete)
+        /// instead of stdout.
+        #[arg(long, value_name = "FILE.csv")]
+        out: Option<PathBuf>,
+        /// Draw an SVG: 1-D, every level's final population (estimate dashed, tolerance line);
+        /// 2-D, heat map of the largest spectator population with the tolerance outline
+        /// (first --vary on x).
+        #[arg(long, value_name = "FILE.svg")]
+        plot: Option<PathBuf>,
+        /// Logarithmic population axis in a 1-D plot (floor 1e-12).
+        #[arg(long)]
+        log_y: bool,
+        /// Worker threads (default: one per core). The output does not depend on it.
+        #[arg(long, value_name = "N")]
+        jobs: Option<usize>,
+        /// Compute only the K-th of N contiguous parts of the grid (K from 1 to N, e.g. a
+        /// Slurm array task id); join the parts with `levelplan merge`.
+        #[arg(long, value_name = "K/N")]
+        shard: Option<String>,
+        /// Continue an interrupted scan from the rows in .FILE.partial (needs --out; same
+        /// scheme and options).
+        #[arg(long)]
+        resume: bool,
+        /// Run grids larger than 10^7 points.
+        #[arg(long)]
+        force: bool,
+    },
+    /// Calibrate one scheme value: the value that maximises a level's final population
+    /// (pi-pulse power or duration, resonance position), or the smallest value at which
+    /// every spectator is within tolerance and every target reaches --goal.
+    #[command(after_help = TUNE_HELP)]
+    Tune {
+        /// Scheme file (YAML).
+        scheme: PathBuf,
+        /// PATH=LO..HI[:COUNT][:log]: the value to tune, its range (units as for scan),
+        /// and the number of coarse-grid points (default 41, at least 3).
+        #[arg(long, value_name = "PATH=LO..HI")]
+        vary: String,
+        /// Maximise the final population of this level (its id in the scheme).
+        #[arg(
+            long,
+            value_name = "LEVEL",
+            conflicts_with = "shortest",
+            required_unless_present = "shortest"
+        )]
+        maximize: Option<String>,
+        /// Find the smallest value with every spectator within tolerance and every target
+        /// at or above --goal.
+        #[arg(long)]
+        shortest: bool,
+        /// Population every target must reach with --shortest.
+        #[arg(
+            long,
+            value_name = "POPULATION",
+            default_value_t = 0.99,
+            requires = "shortest"
+        )]
+        goal: f64,
+        /// Spectator tolerance (population in (0, 1]); default: the scheme's.
+        #[arg(long, value_name = "POPULATION")]
+        tolerance: Option<f64>,
+        /// Refine until the bracket is narrower than this fraction of the range
+        /// (of log10 of the value with --log).
+        #[arg(long, value_name = "FRACTION", default_value_t = crate::tune::DEFAULT_XTOL)]
+        xtol: f64,
+        /// Logarithmic spacing of the coarse grid and the search (LO and HI positive).
+        #[arg(long)]
+        log: bool,
+        /// Worker threads for the coarse grid (default: one per core).
+        #[arg(long, value_name = "N")]
+        jobs: Option<usize>,
+    },
+    /// Join the part files of a sharded scan (`scan --shard K/N`) into the file the
+    /// unsharded scan writes, byte for byte. Refuses parts of different scans, a missing
+    /// or repeated shard, and a part cut short.
+    #[command(
+        after_help = "Example:\n  levelplan merge part_1.csv part_2.csv part_3.csv part_4.csv --out spectrum.csv --plot spectrum.svg\n\nExit status: 0 merged, 2 bad or mismatched parts, 1 output not written."
+    )]
+    Merge {
+        /// Part files, in any order.
+        #[arg(required = true, value_name = "PART.csv")]
+        parts: Vec<PathBuf>,
+        /// Write the merged CSV here (atomically) instead of stdout.
+        #[arg(long, value_name = "FILE.csv")]
+        out: Option<PathBuf>,
+        /// Also draw the merged scan as `scan --plot` does (1-D and 2-D scans).
+        #[arg(long, value_name = "FILE.svg")]
+        plot: Option<PathBuf>,
+        /// Logarithmic population axis in a 1-D plot.
+        #[arg(long)]
+        log_y: bool,
+    },
 }
+
+const SCAN_HELP: &str = "Examples:
+  levelplan scan level_schemes/two_level_calibration.yaml \\
+      --vary fields.probe.tuned.detuning=-50MHz..50MHz:101 --out spectrum.csv --plot spectrum.svg --log-y
+  levelplan scan level_schemes/two_level_calibration.yaml \\
+      --vary fields.probe.envelope.duration=50ns..5000ns:31:log --vary fields.probe.tuned.detuning=-20MHz..20MHz:41 \\
+      --out map.csv --plot map.svg
+  levelplan scan SCHEME --vary ... --shard 3/16 --out part_3.csv   (then: levelplan merge part_*.csv --out all.csv)
+
+Rows are in grid order and byte-identical for any --jobs and after merge. Leading '#' lines state the tool
+version, the scheme's SHA-256, every --vary, the tolerance and the scan hash. A grid is limited to 10^7 points
+without --force. Interrupting (Ctrl-C, kill) leaves no FILE; --resume continues it.
+
+Exit status: 0 written, 2 bad input (path, unit, COUNT, shard, grid size; no file is created), 1 a point failed
+or the output could not be written.
+
+Laser safety: the numbers are for planning. Beam powers used in such schemes can cause eye and skin injury;
+follow your institution's laser-safety rules, its laser safety officer, and IEC 60825-1 / ANSI Z136.1.";
+
+const TUNE_HELP: &str = "Examples:
+  levelplan tune level_schemes/two_level_calibration.yaml --vary fields.probe.envelope.duration=20ns..200ns --maximize e
+  levelplan tune level_schemes/two_level_calibration.yaml --vary fields.probe.envelope.duration=5ns..5000ns:41:log \\
+      --shortest --goal 0.99
+
+Prints the value with its uncertainty (the final bracket, which holds the maximum or the feasibility boundary),
+the populations there, and the number of solves. --maximize assumes one maximum between the neighbours of the
+best coarse point; --shortest takes the first feasible coarse point and bisects towards its predecessor
+(a feasible window narrower than a coarse step can be missed).
+
+Exit status: 0 found, 3 no value in the range meets the --shortest condition, 2 bad input, 1 a run failed.";
 
 fn sink(out: Option<PathBuf>, color: ColorArg) -> Sink {
     match out {
@@ -169,5 +313,58 @@ pub fn run(cli: Cli) -> Result<i32, Error> {
                 log,
             },
         ),
+        Command::Scan {
+            scheme,
+            vary,
+            log,
+            tolerance,
+            out,
+            plot,
+            log_y,
+            jobs,
+            shard,
+            resume,
+            force,
+        } => scan::scan(&ScanOptions {
+            scheme,
+            vary,
+            log,
+            tolerance,
+            out,
+            plot,
+            log_y,
+            jobs,
+            shard,
+            resume,
+            force,
+            progress: std::io::stderr().is_terminal(),
+        }),
+        Command::Tune {
+            scheme,
+            vary,
+            maximize,
+            shortest,
+            goal,
+            tolerance,
+            xtol,
+            log,
+            jobs,
+        } => scan::tune(&TuneOptions {
+            scheme,
+            vary,
+            log,
+            maximize,
+            shortest,
+            goal,
+            tolerance,
+            xtol,
+            jobs,
+        }),
+        Command::Merge {
+            parts,
+            out,
+            plot,
+            log_y,
+        } => scan::merge(&parts, &sink(out, ColorArg::Never), plot.as_deref(), log_y),
     }
 }

@@ -35,13 +35,22 @@ pub enum Error {
     NonFinite { stage: String },
     #[error("norm error {norm_error:.3e} exceeds the limit {limit:.1e}: the propagation cannot be trusted; tighten solver.rtol/atol")]
     NormError { norm_error: f64, limit: f64 },
+    #[error("could not read {path}: {source}")]
+    Input {
+        path: PathBuf,
+        source: std::io::Error,
+    },
+    /// A failure at one point of a scan or tune, with the point's values.
+    #[error("at {at}: {source}")]
+    AtPoint { at: String, source: Box<Error> },
 }
 
 impl Error {
     /// The process exit status for this error.
     pub fn exit_code(&self) -> i32 {
         match self {
-            Error::Scheme(_) | Error::BadArgument { .. } => EXIT_BAD_INPUT,
+            Error::Scheme(_) | Error::BadArgument { .. } | Error::Input { .. } => EXIT_BAD_INPUT,
+            Error::AtPoint { source, .. } => source.exit_code(),
             _ => EXIT_FAILED,
         }
     }

@@ -346,6 +346,40 @@ impl Envelope {
     }
 }
 
+impl Envelope {
+    /// The same shape stretched in time by `s` about its centre (s > 0).
+    pub fn stretched(&self, s: f64) -> Envelope {
+        let c = self.center();
+        let at = |t: f64| c + s * (t - c);
+        match self {
+            Envelope::Rectangular { start, duration } => Envelope::Rectangular {
+                start: at(*start),
+                duration: duration * s,
+            },
+            Envelope::Sin2 { start, duration } => Envelope::Sin2 {
+                start: at(*start),
+                duration: duration * s,
+            },
+            Envelope::Blackman { start, duration } => Envelope::Blackman {
+                start: at(*start),
+                duration: duration * s,
+            },
+            Envelope::Gaussian { center, sigma } => Envelope::Gaussian {
+                center: *center,
+                sigma: sigma * s,
+            },
+            Envelope::Sech { center, tau } => Envelope::Sech {
+                center: *center,
+                tau: tau * s,
+            },
+            Envelope::Samples { times, values } => Envelope::Samples {
+                times: times.iter().map(|&t| at(t)).collect(),
+                values: values.clone(),
+            },
+        }
+    }
+}
+
 /// Linear interpolation of sampled values, 0 outside [first, last].
 #[inline]
 fn sample_interp(times: &[f64], values: &[f64], t: f64) -> f64 {
@@ -388,6 +422,29 @@ impl Model {
     /// Tolerance of a level (its own or the default).
     pub fn tolerance_of(&self, level: usize) -> f64 {
         self.levels[level].tolerance.unwrap_or(self.tolerance)
+    }
+
+    /// A copy with field `field`'s envelope replaced by `env` and its chirp
+    /// multiplied by `chirp_scale`; every drive of that field keeps its pulse
+    /// area (its Rabi frequency is rescaled), and the window is widened to
+    /// hold the new envelope. Used to check remedies by exact propagation.
+    pub fn with_field_envelope(&self, field: usize, env: Envelope, chirp_scale: f64) -> Model {
+        let mut m = self.clone();
+        let old = m.fields[field].envelope.area();
+        let new = env.area();
+        let factor = if new != 0.0 { old / new } else { 0.0 };
+        let (a, b) = env.support();
+        m.window.start = m.window.start.min(a);
+        m.window.end = m.window.end.max(b);
+        m.fields[field].envelope = env;
+        m.fields[field].chirp *= chirp_scale;
+        if let Some(i) = m.fields[field].peak_intensity.as_mut() {
+            *i *= factor * factor;
+        }
+        for d in m.drives.iter_mut().filter(|d| d.field == field) {
+            d.rabi *= factor;
+        }
+        m
     }
 
     /// Index of a level by id.

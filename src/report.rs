@@ -99,8 +99,17 @@ pub struct RemedyRow {
     pub blackman_same_area: f64,
     /// s
     pub length_for_tolerance: Option<f64>,
-    /// s, the present duration measure of that pulse (for comparison)
+    /// s, the present length parameter of that pulse, same definition as
+    /// `length_for_tolerance` (duration, Gaussian intensity FWHM, sech tau,
+    /// sample span)
     pub present_length: f64,
+    /// s, the intensity FWHM matched by the Gaussian and Blackman replacements
+    pub fwhm: f64,
+    /// The same three remedies checked by exact propagation (filled by the
+    /// app, which runs the propagator; None where not checked).
+    pub exact_gaussian: Option<f64>,
+    pub exact_blackman: Option<f64>,
+    pub exact_at_length: Option<f64>,
 }
 
 /// One level's line of the vet report.
@@ -196,6 +205,9 @@ impl VetReport {
             if let Some(r) = &l.remedy {
                 vals.extend([r.gaussian_same_area, r.blackman_same_area, r.present_length]);
                 vals.extend(r.length_for_tolerance);
+                vals.extend(r.exact_gaussian);
+                vals.extend(r.exact_blackman);
+                vals.extend(r.exact_at_length);
             }
             if vals.iter().any(|v| !v.is_finite()) {
                 return Some(format!("the report row of level {}", l.id));
@@ -269,7 +281,11 @@ fn remedy_row(model: &Model, r: &estimate::Remedy) -> RemedyRow {
         gaussian_same_area: r.gaussian_same_area,
         blackman_same_area: r.blackman_same_area,
         length_for_tolerance: r.length_for_tolerance,
-        present_length: envelope_length(env),
+        present_length: r.present_length,
+        fwhm: r.fwhm,
+        exact_gaussian: None,
+        exact_blackman: None,
+        exact_at_length: None,
     }
 }
 

@@ -306,13 +306,19 @@ pub fn vet_doc(r: &VetReport) -> Doc {
             ]);
         }
         if let Some(m) = &l.remedy {
+            let exact = |x: Option<f64>| {
+                x.map_or_else(String::new, |v| {
+                    format!(" (exact {})", numfmt::population(v).plain())
+                })
+            };
             let length = match m.length_for_tolerance {
                 Some(t) => format!(
-                    "a {} pulse of {} (now {}) brings it below {}",
+                    "a {} pulse of {} (now {}) gives {}{}",
                     m.present_shape,
                     numfmt::time(t).plain(),
                     numfmt::time(m.present_length).plain(),
-                    numfmt::population(l.tolerance).plain()
+                    numfmt::population(l.tolerance).plain(),
+                    exact(m.exact_at_length)
                 ),
                 None => format!(
                     "no {} pulse length within 1e4 of the present one reaches {}",
@@ -321,11 +327,14 @@ pub fn vet_doc(r: &VetReport) -> Doc {
                 ),
             };
             remedies.push(format!(
-                "{}: same pulse area of field {} with a gaussian envelope gives {}, with a blackman envelope {}; {}.",
+                "{}: keeping the pulse area of field {}, a gaussian envelope of the same intensity FWHM ({}) gives {}{}, a blackman envelope {}{}; {}.",
                 l.id,
                 m.field,
+                numfmt::time(m.fwhm).plain(),
                 numfmt::population(m.gaussian_same_area).plain(),
+                exact(m.exact_gaussian),
                 numfmt::population(m.blackman_same_area).plain(),
+                exact(m.exact_blackman),
                 length
             ));
         }
@@ -350,7 +359,7 @@ pub fn vet_doc(r: &VetReport) -> Doc {
         });
         if !remedies.is_empty() {
             sections.push(Section {
-                heading: "Remedies (first-order estimates)".into(),
+                heading: "Remedies (first-order estimate, exact propagation in brackets)".into(),
                 table: None,
                 notes: remedies,
             });

@@ -97,6 +97,10 @@ pub fn vet_value(r: &VetReport) -> Value {
                         "gaussian_same_area_population": rm.gaussian_same_area,
                         "blackman_same_area_population": rm.blackman_same_area,
                         "length_for_tolerance_s": rm.length_for_tolerance,
+                        "fwhm_s": rm.fwhm,
+                        "exact_gaussian_population": rm.exact_gaussian,
+                        "exact_blackman_population": rm.exact_blackman,
+                        "exact_population_at_length": rm.exact_at_length,
                     }),
                 );
             }

@@ -11,6 +11,7 @@ pub mod json;
 pub mod latex;
 pub mod markdown;
 pub mod numfmt;
+pub mod scan;
 pub mod text;
 
 use crate::report::{InspectReport, VetReport};
