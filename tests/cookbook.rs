@@ -18,10 +18,12 @@
 //!    `levelplan <version>`, so a version bump does not invalidate the
 //!    cookbook. The SHA-256 of the scheme is not normalised: it is the hash
 //!    of the scheme file's bytes, and it changes exactly when the file does.
-//! 2. Lines made only of comma-separated numbers (the data rows of the CSV
-//!    of `evolve`, printed with every digit of an f64) are compared number by
-//!    number to 1e-9 relative (1e-15 absolute): their last digits depend on
-//!    the platform's mathematical library.
+//! 2. Numbers written with 8 or more significant digits (the CSV rows of
+//!    `evolve` and `scan`, the values `tune` reports) are compared to 1e-9
+//!    relative (1e-300 absolute), each against the number in the same place:
+//!    their last digits depend on the platform's mathematical library. The
+//!    text around them, and every number with fewer digits (all the numbers
+//!    of the reports and tables), must match exactly.
 //!
 //! Scheme excerpts: every "```yaml" block must be found in the scheme file
 //! named last before it (`level_schemes/cookbook/NAME.yaml`): its lines,
@@ -159,13 +161,61 @@ fn normalise_version(s: &str) -> String {
     out
 }
 
-fn numeric_row(line: &str) -> Option<Vec<f64>> {
-    if !line.contains(',') {
-        return None;
+/// Splits a line into its text with every full-precision number (8 or more
+/// significant digits, not part of a word) replaced by `#`, and those numbers.
+fn skeleton(line: &str) -> (String, Vec<f64>) {
+    let b = line.as_bytes();
+    let mut text = String::with_capacity(line.len());
+    let mut numbers = Vec::new();
+    let mut i = 0;
+    while i < b.len() {
+        let prev_is_word =
+            i > 0 && (b[i - 1].is_ascii_alphanumeric() || b[i - 1] == b'_' || b[i - 1] == b'.');
+        let starts = b[i].is_ascii_digit()
+            || ((b[i] == b'-' || b[i] == b'+' || b[i] == b'.')
+                && b.get(i + 1)
+                    .is_some_and(|c| c.is_ascii_digit() || *c == b'.'));
+        if !starts || prev_is_word {
+            let ch = line[i..].chars().next().unwrap_or(' ');
+            text.push(ch);
+            i += ch.len_utf8();
+            continue;
+        }
+        let mut j = i;
+        if b[j] == b'-' || b[j] == b'+' {
+            j += 1;
+        }
+        let mut digits = String::new();
+        while j < b.len() && (b[j].is_ascii_digit() || b[j] == b'.') {
+            if b[j].is_ascii_digit() {
+                digits.push(b[j] as char);
+            }
+            j += 1;
+        }
+        if j < b.len() && (b[j] == b'e' || b[j] == b'E') {
+            let mut k = j + 1;
+            if k < b.len() && (b[k] == b'-' || b[k] == b'+') {
+                k += 1;
+            }
+            if k < b.len() && b[k].is_ascii_digit() {
+                while k < b.len() && b[k].is_ascii_digit() {
+                    k += 1;
+                }
+                j = k;
+            }
+        }
+        let significant = digits.trim_start_matches('0').len();
+        let word_follows = j < b.len() && (b[j].is_ascii_alphanumeric() || b[j] == b'_');
+        match line[i..j].parse::<f64>() {
+            Ok(x) if significant >= 8 && !word_follows => {
+                text.push('#');
+                numbers.push(x);
+            }
+            _ => text.push_str(&line[i..j]),
+        }
+        i = j;
     }
-    line.split(',')
-        .map(|x| x.trim().parse::<f64>().ok())
-        .collect()
+    (text, numbers)
 }
 
 /// Compare expected and actual output under the two rules; None if equal,
@@ -181,13 +231,14 @@ fn compare(expected: &str, actual: &str) -> Option<String> {
         if x == y {
             continue;
         }
-        let same = match (numeric_row(x), numeric_row(y)) {
-            (Some(u), Some(v)) if u.len() == v.len() => u
+        let (sx, nx) = skeleton(x);
+        let (sy, ny) = skeleton(y);
+        let same = sx == sy
+            && nx.len() == ny.len()
+            && nx
                 .iter()
-                .zip(&v)
-                .all(|(p, q)| (p - q).abs() <= 1e-9 * p.abs().max(q.abs()) + 1e-15),
-            _ => false,
-        };
+                .zip(&ny)
+                .all(|(p, q)| (p - q).abs() <= 1e-9 * p.abs().max(q.abs()) + 1e-300);
         if !same {
             return Some(format!("line {}:\n  expected: {x}\n  printed:  {y}", i + 1));
         }
@@ -260,9 +311,21 @@ fn normalisation_rules_do_what_the_header_says() {
     );
     // Not a version: untouched.
     assert_eq!(normalise_version("levelplan vet"), "levelplan vet");
-    assert_eq!(compare("1e-3,2.5\n", "1.0000000000001e-3,2.5\n"), None);
+    // Full-precision numbers: equal to 1e-9 relative.
+    assert_eq!(
+        compare("1.2345678901e-3,2.5,,0\n", "1.2345678902e-3,2.5,,0\n"),
+        None
+    );
+    assert_eq!(
+        compare("value: -1.001000690e0 GHz\n", "value: -1.001000691e0 GHz\n"),
+        None
+    );
+    assert!(compare("1.2345678901e-3,2.5\n", "1.2345688901e-3,2.5\n").is_some());
+    // Short numbers, words and hashes: exact.
     assert!(compare("1e-3,2.5\n", "1.0001e-3,2.5\n").is_some());
     assert!(compare("a 0.0013\n", "a 0.0014\n").is_some());
+    assert!(compare("sha256 12345678901a\n", "sha256 12345678902a\n").is_some());
+    assert!(compare("x 1.2345678901e-3\n", "y 1.2345678901e-3\n").is_some());
     assert!(compare("a\n", "a\nb\n").is_some());
 }
 
