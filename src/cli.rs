@@ -12,12 +12,69 @@ use clap::{Parser, Subcommand, ValueEnum};
 use std::io::IsTerminal;
 use std::path::PathBuf;
 
-const EXIT_CODES: &str = "Exit status: 0 every spectator within tolerance (or the command succeeded), \
+const EXIT_CODES: &str = "Units: frequencies given in Hz are cyclic (Omega/2pi, Delta/2pi); detuning = laser - transition \
+(positive = blue); Rabi frequencies at the envelope peak; Gaussian FWHM of the intensity; populations are |c|^2 \
+in the bare basis. The scheme format, physics and worked examples: docs/scheme-format.md, docs/physics.md, \
+docs/cookbook.md in the source repository.
+
+Exit status: 0 every spectator within tolerance (or the command succeeded), \
 3 at least one spectator above its tolerance (vet), 2 bad input (scheme file or option), \
 1 a run that could not vouch for its result (step budget, norm error, non-finite value) or could not write its output.
 
 Laser safety: the numbers are for planning. Beam powers used in such schemes can cause eye and skin \
-injury; follow your institution's laser-safety rules, its laser safety officer, and IEC 60825-1 / ANSI Z136.1.";
+injury; follow your institution's laser-safety rules, its laser safety officer, and IEC 60825-1 / ANSI Z136.1. \
+Results are model calculations; check them against measurement.";
+
+const INSPECT_HELP: &str = "Examples:
+  levelplan inspect level_schemes/hyperfine_manifold.yaml
+  levelplan inspect level_schemes/hyperfine_manifold.yaml --format json --out drives.json
+
+Units of the text, Markdown and LaTeX reports (with SI prefixes): energies in cm^-1 and Hz (E/h), lifetimes
+in s, vacuum wavelengths in nm, frequencies, detunings and Rabi frequencies cyclic in Hz (detuning = laser -
+transition, positive = blue), pulse areas in units of pi (Omega x integral of the envelope), peak intensities
+in W/cm^2. CSV and JSON: full precision, the unit named in the column or key. Nothing is propagated.
+
+Exit status: 0 printed, 2 bad input (scheme file or option), 1 output not written.
+
+Laser safety: the numbers are for planning. Beam powers used in such schemes can cause eye and skin injury;
+follow your institution's laser-safety rules, its laser safety officer, and IEC 60825-1 / ANSI Z136.1.";
+
+const VET_HELP: &str = "Examples:
+  levelplan vet level_schemes/hyperfine_manifold.yaml
+  levelplan vet level_schemes/hyperfine_manifold.yaml --tolerance 1e-3 --format markdown --out table.md
+  levelplan vet level_schemes/hyperfine_manifold.yaml --format latex      (booktabs tables for a proposal)
+
+For every level: final and peak population (exact propagation), the perturbative estimate and its order
+(1st, or 2nd where first order cannot reach the level), final/estimate, the tolerance and the status (LEAK:
+spectator above its tolerance; est?: estimate above 0.1 or off the exact value by more than a factor 2).
+Each leak lists the drives that feed it (field, source level, detuning and Rabi frequency, cyclic, in Hz with
+SI prefixes) and a remedy (same pulse area with a Gaussian or Blackman envelope of the same intensity FWHM, or the
+pulse length that brings the estimate below tolerance), each checked by exact propagation. Drives beyond the
+detuning cutoff are listed with their estimate and light shift Omega^2/(4 Delta) (cyclic). Populations below
+1e-3 are printed in scientific notation. Every output records the tool version, the scheme file and the
+SHA-256 of its bytes, the solver method and tolerances.
+
+Exit status: 0 every spectator within tolerance, 3 at least one above (the report is still printed),
+2 bad input (scheme file or option), 1 a run that could not vouch for its result or output not written.
+
+Laser safety: the numbers are for planning. Beam powers used in such schemes can cause eye and skin injury;
+follow your institution's laser-safety rules, its laser safety officer, and IEC 60825-1 / ANSI Z136.1.
+Results are model calculations; check them against measurement.";
+
+const EVOLVE_HELP: &str = "Examples:
+  levelplan evolve level_schemes/two_level_calibration.yaml --samples 401 --out run.csv --plot run.svg --log
+  levelplan evolve level_schemes/two_level_calibration.yaml --samples 5      (CSV to stdout)
+
+CSV: a leading '#' line (tool version, scheme file and SHA-256, solver method, rtol, atol), then the header
+time_s,<level ids> and one row per sample: the absolute scheme time in seconds and every level's population
+|c|^2 (bare basis), in full precision. The samples are evenly spaced over the window, both ends included; the
+last row is the final state.
+
+Exit status: 0 written, 2 bad input (scheme file or option), 1 a run that could not vouch for its result
+(step budget, norm error, non-finite value) or output not written.
+
+Laser safety: the numbers are for planning. Beam powers used in such schemes can cause eye and skin injury;
+follow your institution's laser-safety rules, its laser safety officer, and IEC 60825-1 / ANSI Z136.1.";
 
 #[derive(Debug, Parser)]
 #[command(
@@ -34,10 +91,15 @@ pub struct Cli {
 /// Output format of a report.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
 pub enum FormatArg {
+    /// Aligned tables for the terminal (colour only with --color or on a terminal).
     Text,
+    /// Markdown tables to paste into a document.
     Markdown,
+    /// LaTeX tables (booktabs: \usepackage{booktabs}) for a proposal.
     Latex,
+    /// One row per level (vet) or drive (inspect), full precision, units in the column names.
     Csv,
+    /// The stable keys of the contract (docs/scheme-format.md), full precision.
     Json,
 }
 
@@ -58,7 +120,9 @@ impl From<FormatArg> for Format {
 pub enum ColorArg {
     /// Only when stdout is a terminal.
     Auto,
+    /// Always (ANSI escapes, also into a pipe).
     Always,
+    /// Never: plain text, the flags stay readable.
     Never,
 }
 
@@ -66,16 +130,14 @@ pub enum ColorArg {
 pub enum Command {
     /// Dry run: levels (cm^-1, THz, lifetime), every drive (transition, wavelength,
     /// detuning, peak Rabi frequency, pulse area, left out or not) and field intensities.
-    #[command(
-        after_help = "Example:\n  levelplan inspect level_schemes/hyperfine_manifold.yaml --format json"
-    )]
+    #[command(after_help = INSPECT_HELP)]
     Inspect {
         /// Scheme file (YAML).
         scheme: PathBuf,
         /// Output format.
         #[arg(long, value_enum, default_value_t = FormatArg::Text)]
         format: FormatArg,
-        /// Write to this file (atomically) instead of stdout.
+        /// Write to this file (written whole or not at all) instead of stdout.
         #[arg(long, value_name = "FILE")]
         out: Option<PathBuf>,
         /// Colour text output.
@@ -84,20 +146,19 @@ pub enum Command {
     },
     /// The main job: exact propagation and the perturbative estimate side by side;
     /// flags spectators above tolerance, names the drives that feed them and a computed remedy.
-    #[command(
-        after_help = "Example:\n  levelplan vet level_schemes/hyperfine_manifold.yaml --tolerance 1e-3 --format markdown --out table.md\n\nExit status: 0 every spectator within tolerance, 3 at least one above, 2 bad input, 1 run failed."
-    )]
+    #[command(after_help = VET_HELP)]
     Vet {
         /// Scheme file (YAML).
         scheme: PathBuf,
-        /// Spectator tolerance (population, a bare number in (0, 1]); overrides the scheme's
-        /// default, per-level tolerances still apply.
+        /// Spectator tolerance: a final population (bare number in (0, 1], e.g. 1e-3) above
+        /// which a spectator is flagged; overrides the scheme's default, per-level tolerances
+        /// still apply.
         #[arg(long, value_name = "POPULATION")]
         tolerance: Option<f64>,
         /// Output format.
         #[arg(long, value_enum, default_value_t = FormatArg::Text)]
         format: FormatArg,
-        /// Write to this file (atomically) instead of stdout.
+        /// Write to this file (written whole or not at all) instead of stdout.
         #[arg(long, value_name = "FILE")]
         out: Option<PathBuf>,
         /// Colour text output.
@@ -105,22 +166,24 @@ pub enum Command {
         color: ColorArg,
     },
     /// Populations of every level against time, as CSV (time_s,<level ids>) and optionally an SVG plot.
-    #[command(
-        after_help = "Example:\n  levelplan evolve level_schemes/two_level_calibration.yaml --samples 401 --out run.csv --plot run.svg --log"
-    )]
+    #[command(after_help = EVOLVE_HELP)]
     Evolve {
         /// Scheme file (YAML).
         scheme: PathBuf,
-        /// Number of evenly spaced time samples, window start and end included.
+        /// Number of evenly spaced time samples over the scheme's window, start and end
+        /// included (2 to 1,000,000).
         #[arg(long, default_value_t = 201, value_name = "N")]
         samples: usize,
-        /// Write the CSV to this file (atomically) instead of stdout.
+        /// Write the CSV (time in s, populations) to this file (written whole or not at all)
+        /// instead of stdout.
         #[arg(long, value_name = "FILE.csv")]
         out: Option<PathBuf>,
-        /// Also draw the populations into this SVG file.
+        /// Also draw the populations against time (axis in s, ms, us, ns or ps) into this SVG
+        /// file, with the tolerance as a dashed line.
         #[arg(long, value_name = "FILE.svg")]
         plot: Option<PathBuf>,
-        /// Logarithmic population axis in the plot (shows small spectator populations).
+        /// Logarithmic population axis in the plot, floor 1e-12 (shows small spectator
+        /// populations).
         #[arg(long)]
         log: bool,
     },
@@ -195,7 +258,7 @@ pub enum Command {
         /// at or above --goal.
         #[arg(long)]
         shortest: bool,
-        /// Population every target must reach with --shortest.
+        /// Final population every target must reach with --shortest (bare number in (0, 1]).
         #[arg(
             long,
             value_name = "POPULATION",

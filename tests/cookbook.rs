@@ -288,6 +288,35 @@ fn run(block: &Block, scratch: &Path) -> Run {
     }
 }
 
+/// Run every block, on as many threads as the machine has cores (at most
+/// 4); the results come back in document order.
+fn run_all(blocks: &[Block], scratch: &Path) -> Vec<Run> {
+    use std::sync::atomic::{AtomicUsize, Ordering};
+    use std::sync::Mutex;
+    let threads = std::thread::available_parallelism()
+        .map(|n| n.get())
+        .unwrap_or(1)
+        .clamp(1, 4);
+    let next = AtomicUsize::new(0);
+    let results: Mutex<Vec<Option<Run>>> = Mutex::new((0..blocks.len()).map(|_| None).collect());
+    std::thread::scope(|s| {
+        for _ in 0..threads {
+            s.spawn(|| loop {
+                let i = next.fetch_add(1, Ordering::SeqCst);
+                let Some(b) = blocks.get(i) else { break };
+                let r = run(b, scratch);
+                results.lock().expect("no poisoned lock")[i] = Some(r);
+            });
+        }
+    });
+    results
+        .into_inner()
+        .expect("no poisoned lock")
+        .into_iter()
+        .map(|r| r.expect("every block ran"))
+        .collect()
+}
+
 fn scratch_dir() -> PathBuf {
     let d = std::env::temp_dir().join(format!("levelplan-cookbook-{}", std::process::id()));
     std::fs::create_dir_all(&d).expect("temporary directory");
@@ -346,8 +375,22 @@ fn cookbook_output_is_current() {
     let mut failures = Vec::new();
     let mut new_doc = String::new();
     let mut copied = 0;
+    // Files the commands write must not collide: they share one directory.
+    let mut names = std::collections::BTreeSet::new();
     for b in &blocks {
-        let r = run(b, &scratch);
+        for w in b.args.windows(2) {
+            if w[0] == "--out" || w[0] == "--plot" {
+                let name = Path::new(&w[1]).file_name().map(|n| n.to_os_string());
+                assert!(
+                    names.insert(name),
+                    "two commands of the cookbook write {}",
+                    w[1]
+                );
+            }
+        }
+    }
+    let runs = run_all(&blocks, &scratch);
+    for (b, r) in blocks.iter().zip(runs) {
         if r.status != Some(b.exit_status) {
             failures.push(format!(
                 "$ levelplan {}: exit status {:?}, the cookbook says {}\n{}",

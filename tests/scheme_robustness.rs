@@ -43,7 +43,9 @@ fn demos() -> Vec<String> {
     let dir = Path::new(env!("CARGO_MANIFEST_DIR")).join("level_schemes");
     let mut v: Vec<String> = std::fs::read_dir(dir)
         .unwrap()
-        .map(|e| std::fs::read_to_string(e.unwrap().path()).unwrap())
+        .map(|e| e.unwrap().path())
+        .filter(|p| p.extension().is_some_and(|x| x == "yaml"))
+        .map(|p| std::fs::read_to_string(p).unwrap())
         .collect();
     v.sort();
     v
