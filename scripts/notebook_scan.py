@@ -74,7 +74,7 @@ def main():
 
 def read(path):
     rows = [r for r in csv.reader(l for l in open(path) if not l.startswith("#"))]
-    return rows[0], [[float(x) for x in r] for r in rows[1:]]
+    return rows[0], [[float(x) if x else float("nan") for x in r] for r in rows[1:]]
 
 
 def compare(notebook, ours):

@@ -87,6 +87,8 @@ struct SchemeText {
     text: String,
     file: String,
     sha256: String,
+    /// The scheme parsed once for every grid point (built on first use).
+    prepared: std::sync::OnceLock<scheme::Prepared>,
 }
 
 impl SchemeText {
@@ -106,6 +108,7 @@ impl SchemeText {
             text,
             file: path.display().to_string(),
             sha256,
+            prepared: std::sync::OnceLock::new(),
         })
     }
 
@@ -135,11 +138,14 @@ impl SchemeText {
 
     /// The model at a point of the grid.
     fn model_at(&self, grid: &Grid, coords: &[f64]) -> Result<Model, Error> {
-        Ok(scheme::parse_with_overrides(
-            &self.text,
-            &self.file,
-            &grid.overrides(coords),
-        )?)
+        let prepared = match self.prepared.get() {
+            Some(p) => p,
+            None => {
+                let p = scheme::Prepared::new(&self.text, &self.file)?;
+                self.prepared.get_or_init(|| p)
+            }
+        };
+        Ok(prepared.with_overrides(&grid.overrides(coords))?)
     }
 
     /// Parse the scheme at the first and last grid point (every START and

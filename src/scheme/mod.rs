@@ -206,40 +206,68 @@ pub fn parse_with_overrides(
     file_name: &str,
     overrides: &[(String, String)],
 ) -> Result<Model, SchemeError> {
-    let raw: Option<RawScheme> = yaml::from_str(text).map_err(|e| yaml_error(file_name, e))?;
-    let raw = raw.unwrap_or_default();
     if overrides.is_empty() {
-        return validate_raw(&raw, text, file_name, Vec::new());
+        let raw: Option<RawScheme> = yaml::from_str(text).map_err(|e| yaml_error(file_name, e))?;
+        return validate_raw(&raw.unwrap_or_default(), text, file_name, Vec::new());
     }
-    // The file must be valid on its own before values are replaced.
-    validate_raw(&raw, text, file_name, Vec::new())?;
-    let mut value: Value = yaml::value_from_str(text).map_err(|e| yaml_error(file_name, e))?;
-    let mut diags = Vec::new();
-    let mut overridden = Vec::new();
-    let loc = Locator::new(text);
-    for (path, new) in overrides {
-        match apply_override(&mut value, path, new) {
-            Ok(kp) => overridden.push(kp.to_string()),
-            Err((kp, expected, found)) => {
-                let pos = loc.locate(&kp);
-                diags.push(Diagnostic {
-                    line: pos.map(|p| p.0),
-                    column: pos.map(|p| p.1),
-                    path: path.clone(),
-                    expected,
-                    found,
-                });
+    Prepared::new(text, file_name)?.with_overrides(overrides)
+}
+
+/// A scheme read and validated once, ready to be re-validated with overrides
+/// many times (a scan): the YAML is parsed once, each point only replaces
+/// values in the parsed tree and validates.
+#[derive(Debug, Clone)]
+pub struct Prepared {
+    text: String,
+    file: String,
+    value: Value,
+}
+
+impl Prepared {
+    /// Parse and validate `text` (it must be valid on its own).
+    pub fn new(text: &str, file_name: &str) -> Result<Prepared, SchemeError> {
+        // Typed parse first: its errors carry lines and columns.
+        let raw: Option<RawScheme> = yaml::from_str(text).map_err(|e| yaml_error(file_name, e))?;
+        validate_raw(&raw.unwrap_or_default(), text, file_name, Vec::new())?;
+        let value: Value = yaml::value_from_str(text).map_err(|e| yaml_error(file_name, e))?;
+        Ok(Prepared {
+            text: text.to_string(),
+            file: file_name.to_string(),
+            value,
+        })
+    }
+
+    /// The model with the given overrides (see [`parse_with_overrides`]).
+    pub fn with_overrides(&self, overrides: &[(String, String)]) -> Result<Model, SchemeError> {
+        let (text, file_name) = (self.text.as_str(), self.file.as_str());
+        let mut value = self.value.clone();
+        let mut diags = Vec::new();
+        let mut overridden = Vec::new();
+        for (path, new) in overrides {
+            match apply_override(&mut value, path, new) {
+                Ok(kp) => overridden.push(kp.to_string()),
+                Err((kp, expected, found)) => {
+                    let pos = Locator::new(text).locate(&kp);
+                    diags.push(Diagnostic {
+                        line: pos.map(|p| p.0),
+                        column: pos.map(|p| p.1),
+                        path: path.clone(),
+                        expected,
+                        found,
+                    });
+                }
             }
         }
+        if !diags.is_empty() {
+            return Err(SchemeError {
+                file: file_name.to_string(),
+                diagnostics: diags,
+            });
+        }
+        let raw: Option<RawScheme> =
+            yaml::from_value(value).map_err(|e| yaml_error(file_name, e))?;
+        validate_raw(&raw.unwrap_or_default(), text, file_name, overridden)
     }
-    if !diags.is_empty() {
-        return Err(SchemeError {
-            file: file_name.to_string(),
-            diagnostics: diags,
-        });
-    }
-    let raw: Option<RawScheme> = yaml::from_value(value).map_err(|e| yaml_error(file_name, e))?;
-    validate_raw(&raw.unwrap_or_default(), text, file_name, overridden)
 }
 
 fn validate_raw(

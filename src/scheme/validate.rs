@@ -21,7 +21,10 @@ use std::collections::HashMap;
 
 /// Where diagnostics go, with the text to locate keys in.
 pub(crate) struct Ctx<'a> {
-    loc: Locator<'a>,
+    /// The text, and its key locator built only when a problem is reported
+    /// (a valid scheme, e.g. every point of a scan, never pays for it).
+    text: &'a str,
+    loc_cell: std::cell::OnceCell<Locator<'a>>,
     pub(crate) diags: Vec<Diagnostic>,
     /// Rendered key paths whose values came from overrides.
     overridden: Vec<String>,
@@ -40,7 +43,8 @@ enum Sign {
 impl<'a> Ctx<'a> {
     pub(crate) fn new(text: &'a str, overridden: Vec<String>) -> Self {
         Ctx {
-            loc: Locator::new(text),
+            text,
+            loc_cell: std::cell::OnceCell::new(),
             diags: Vec::new(),
             overridden,
             suppressed: 0,
@@ -79,12 +83,16 @@ impl<'a> Ctx<'a> {
             self.suppressed += 1;
             return;
         }
-        let pos = self.loc.locate(path);
+        let pos = self.loc().locate(path);
         self.push_at(path, pos, expected, found);
     }
 
+    fn loc(&self) -> &Locator<'a> {
+        self.loc_cell.get_or_init(|| Locator::new(self.text))
+    }
+
     fn line_of(&self, path: &KeyPath) -> Option<usize> {
-        self.loc.locate(path).map(|x| x.0)
+        self.loc().locate(path).map(|x| x.0)
     }
 
     fn missing(&mut self, path: &KeyPath, expected: impl Into<String>) {
@@ -323,7 +331,7 @@ pub(crate) fn validate(raw: &RawScheme, ctx: &mut Ctx) -> Option<Model> {
         *occ += 1;
         if *occ > 1 {
             let first = ctx.line_of(&path);
-            let pos = ctx.loc.locate_occurrence(&path, *occ - 1);
+            let pos = ctx.loc().locate_occurrence(&path, *occ - 1);
             let where_ = first
                 .map(|l| format!(" (the first is on line {l})"))
                 .unwrap_or_default();
@@ -455,7 +463,7 @@ pub(crate) fn validate(raw: &RawScheme, ctx: &mut Ctx) -> Option<Model> {
         *occ += 1;
         if *occ > 1 {
             let first = ctx.line_of(&path);
-            let pos = ctx.loc.locate_occurrence(&path, *occ - 1);
+            let pos = ctx.loc().locate_occurrence(&path, *occ - 1);
             let where_ = first
                 .map(|l| format!(" (the first is on line {l})"))
                 .unwrap_or_default();

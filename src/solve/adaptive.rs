@@ -21,6 +21,7 @@ use super::plan::{max_step, PeakTracker, Piece, Plan};
 use super::{Solution, SolveError, SolveOptions};
 use crate::hamiltonian::{drive_name, FrameHamiltonian};
 use crate::model::Model;
+use nalgebra::{allocator::Allocator, Const, DefaultAllocator, Dim, Dyn, OVector};
 use num_complex::Complex64;
 use ode_solvers::dop_shared::IntegrationError;
 use ode_solvers::{DVector, Dop853, OutputType, System};
@@ -43,8 +44,11 @@ pub struct Autonomous<'a, R: AutonomousRhs> {
     accepted: &'a Cell<u64>,
 }
 
-impl<R: AutonomousRhs> System<f64, DVector<f64>> for Autonomous<'_, R> {
-    fn system(&self, _x: f64, y: &DVector<f64>, dy: &mut DVector<f64>) {
+impl<R: AutonomousRhs, D: Dim> System<f64, OVector<f64, D>> for Autonomous<'_, R>
+where
+    DefaultAllocator: Allocator<D>,
+{
+    fn system(&self, _x: f64, y: &OVector<f64, D>, dy: &mut OVector<f64, D>) {
         let n = y.len() - 1;
         let t = y[n];
         self.rhs
@@ -53,7 +57,7 @@ impl<R: AutonomousRhs> System<f64, DVector<f64>> for Autonomous<'_, R> {
         self.evaluations.set(self.evaluations.get() + 1);
     }
 
-    fn solout(&mut self, _x: f64, y: &DVector<f64>, dy: &DVector<f64>) -> bool {
+    fn solout(&mut self, _x: f64, y: &OVector<f64, D>, dy: &OVector<f64, D>) -> bool {
         let n = y.len() - 1;
         self.accepted.set(self.accepted.get() + 1);
         self.rhs
@@ -143,6 +147,9 @@ fn chunk_steps(dim: usize) -> u64 {
 
 /// Integrate dy/dt = F(t, y) from t0 to t1 with Dop853, time carried in the
 /// state (the workaround described in the module docs).
+///
+/// Small systems run on fixed-size vectors (no heap allocation in the
+/// solver's stage arithmetic); larger ones on heap vectors.
 pub fn integrate_autonomous<R: AutonomousRhs>(
     rhs: &mut R,
     t0: f64,
@@ -150,6 +157,29 @@ pub fn integrate_autonomous<R: AutonomousRhs>(
     y0: &[f64],
     settings: &AdaptiveSettings,
 ) -> Result<AutonomousRun, RunError> {
+    macro_rules! by_dimension {
+        ($($k:literal)*) => {
+            match y0.len() + 1 {
+                $($k => integrate_in(rhs, t0, t1, y0, settings, Const::<$k>),)*
+                m => integrate_in(rhs, t0, t1, y0, settings, Dyn(m)),
+            }
+        };
+    }
+    // State = 2N real amplitudes + lost population (+ time): N = 1..=16 levels.
+    by_dimension!(2 3 4 5 6 7 8 9 10 11 12 13 14 15 16 17 18 19 20 21 22 23 24 25 26 27 28 29 30 31 32 33 34 35 36)
+}
+
+fn integrate_in<R: AutonomousRhs, D: Dim>(
+    rhs: &mut R,
+    t0: f64,
+    t1: f64,
+    y0: &[f64],
+    settings: &AdaptiveSettings,
+    dim: D,
+) -> Result<AutonomousRun, RunError>
+where
+    DefaultAllocator: Allocator<D>,
+{
     let n = y0.len();
     let mut y: Vec<f64> = y0.to_vec();
     let mut t = t0;
@@ -172,7 +202,7 @@ pub fn integrate_autonomous<R: AutonomousRhs>(
             return Err(RunError::StepLimit { t, steps });
         }
         let n_max = left.min(chunk);
-        let mut state = DVector::from_element(n + 1, 0.0);
+        let mut state = OVector::<f64, D>::from_element_generic(dim, Const::<1>, 0.0);
         state.as_mut_slice()[..n].copy_from_slice(&y);
         state[n] = t;
         let evals = Cell::new(0u64);
