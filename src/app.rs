@@ -178,20 +178,32 @@ pub fn check_tolerance(tolerance: Option<f64>) -> Result<(), Error> {
 pub fn vet(
     scheme_path: &Path,
     tolerance: Option<f64>,
+    goal: Option<f64>,
     format: Format,
     sink: &Sink,
 ) -> Result<i32, Error> {
     check_tolerance(tolerance)?;
+    if let Some(g) = goal {
+        if !(g.is_finite() && g > 0.0 && g <= 1.0) {
+            return Err(Error::BadArgument {
+                what: "--goal".into(),
+                message: format!("expected a population in (0, 1], found {g}"),
+            });
+        }
+    }
     let (model, prov) = load(scheme_path)?;
     let mut rep = vet_model(&model, prov, tolerance)?;
     check_remedies(&model, &mut rep)?;
+    if let Some(g) = goal {
+        report::judge_targets(&mut rep, g);
+    }
     if let Some(stage) = rep.first_non_finite() {
         return Err(Error::NonFinite { stage });
     }
     let exporter = render::exporter(format, color(sink));
     let bytes = render_to_vec(|w| exporter.vet(&rep, w))?;
     emit(sink, &bytes)?;
-    Ok(if rep.flagged > 0 {
+    Ok(if rep.flagged > 0 || rep.targets_short > 0 {
         EXIT_TOLERANCE
     } else {
         EXIT_OK

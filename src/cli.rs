@@ -18,7 +18,7 @@ in the bare basis. The scheme format, physics and worked examples: docs/scheme-f
 docs/cookbook.md in the source repository.
 
 Exit status: 0 every spectator within tolerance (or the command succeeded), \
-3 at least one spectator above its tolerance (vet), 2 bad input (scheme file or option), \
+3 at least one spectator above its tolerance or, with --goal, a target below the goal (vet), 2 bad input (scheme file or option), \
 1 a run that could not vouch for its result (step budget, norm error, non-finite value) or could not write its output.
 
 Laser safety: the numbers are for planning. Beam powers used in such schemes can cause eye and skin \
@@ -54,7 +54,8 @@ detuning cutoff are listed with their estimate and light shift Omega^2/(4 Delta)
 1e-3 are printed in scientific notation. Every output records the tool version, the scheme file and the
 SHA-256 of its bytes, the solver method and tolerances.
 
-Exit status: 0 every spectator within tolerance, 3 at least one above (the report is still printed),
+Exit status: 0 every spectator within tolerance, 3 at least one above or (with --goal) a target
+below the goal (the report is still printed),
 2 bad input (scheme file or option), 1 a run that could not vouch for its result or output not written.
 
 Laser safety: the numbers are for planning. Beam powers used in such schemes can cause eye and skin injury;
@@ -155,6 +156,11 @@ pub enum Command {
         /// still apply.
         #[arg(long, value_name = "POPULATION")]
         tolerance: Option<f64>,
+        /// Target goal: a final population (bare number in (0, 1], e.g. 0.95) every target
+        /// must reach; a target below it is marked SHORT and, like a leak, gives exit status 3.
+        /// Without it targets are reported, not judged.
+        #[arg(long, value_name = "POPULATION")]
+        goal: Option<f64>,
         /// Output format.
         #[arg(long, value_enum, default_value_t = FormatArg::Text)]
         format: FormatArg,
@@ -357,10 +363,11 @@ pub fn run(cli: Cli) -> Result<i32, Error> {
         Command::Vet {
             scheme,
             tolerance,
+            goal,
             format,
             out,
             color,
-        } => app::vet(&scheme, tolerance, format.into(), &sink(out, color)),
+        } => app::vet(&scheme, tolerance, goal, format.into(), &sink(out, color)),
         Command::Evolve {
             scheme,
             samples,

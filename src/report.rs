@@ -127,6 +127,8 @@ pub struct LevelRow {
     pub ratio: Option<f64>,
     pub tolerance: f64,
     pub flagged: bool,
+    /// A target below the goal asked for (`vet --goal`).
+    pub below_goal: bool,
     pub unreliable: bool,
     pub sources: Vec<SourceRow>,
     pub remedy: Option<RemedyRow>,
@@ -177,6 +179,10 @@ pub struct VetReport {
     pub lost_population: f64,
     pub norm_error: f64,
     pub flagged: usize,
+    /// Target goal asked for (`vet --goal`), if any.
+    pub goal: Option<f64>,
+    /// Targets whose final population is below the goal.
+    pub targets_short: usize,
     /// Largest final population among spectators (0 if none).
     pub max_spectator: f64,
     pub safety: Vec<SafetyNote>,
@@ -358,6 +364,7 @@ pub fn vet(
             ratio,
             tolerance: tol,
             flagged: is_flagged,
+            below_goal: false,
             unreliable: role != Role::Initial && unreliable(shown, fin),
             sources: source_rows(model, &est.sources),
             remedy,
@@ -399,8 +406,23 @@ pub fn vet(
         norm_error: solution.norm_error,
         flagged,
         max_spectator,
+        goal: None,
+        targets_short: 0,
         safety: safety_notes(model),
     })
+}
+
+/// Judge every target against a goal population: a target below it is
+/// marked and counted (the CLI then exits with status 3, as for a leak).
+pub fn judge_targets(report: &mut VetReport, goal: f64) {
+    report.goal = Some(goal);
+    report.targets_short = 0;
+    for l in report.levels.iter_mut() {
+        l.below_goal = l.role == Role::Target && l.final_population < goal;
+        if l.below_goal {
+            report.targets_short += 1;
+        }
+    }
 }
 
 /// Fields whose peak intensity reaches [`SAFETY_INTENSITY`] or is unknown.

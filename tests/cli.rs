@@ -238,3 +238,35 @@ fn help_lists_exit_statuses_and_safety() {
     let s = String::from_utf8(out.stdout).unwrap();
     assert!(s.contains("IEC 60825-1"));
 }
+
+#[test]
+fn goal_judges_targets_and_sets_the_exit_status() {
+    let root = Path::new(env!("CARGO_MANIFEST_DIR"));
+    let demo = root.join("level_schemes/lambda_raman.yaml");
+    let d = demo.to_str().unwrap();
+    let json = |goal: &str| -> (Option<i32>, serde_json::Value) {
+        let out = run(&["vet", d, "--format", "json", "--goal", goal]);
+        (
+            out.status.code(),
+            serde_json::from_slice(&out.stdout).unwrap(),
+        )
+    };
+    let (_, free) = json("0.5");
+    let p = free["levels"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|l| l["role"] == "target")
+        .unwrap()["final_population"]
+        .as_f64()
+        .unwrap();
+    // Just below and just above the target's own final population.
+    let (code, v) = json(&format!("{}", p * 0.999));
+    assert_eq!(code, Some(0));
+    assert_eq!(v["targets_below_goal"], 0);
+    let (code, v) = json(&format!("{}", (p * 1.001).min(1.0)));
+    assert_eq!(code, Some(3));
+    assert_eq!(v["targets_below_goal"], 1);
+    let out = run(&["vet", d, "--goal", "1.5"]);
+    assert_eq!(out.status.code(), Some(2));
+}

@@ -183,10 +183,13 @@ fn status_cell(row: &LevelRow) -> Cell {
     if row.flagged {
         words.push("LEAK");
     }
+    if row.below_goal {
+        words.push("SHORT");
+    }
     if row.unreliable {
         words.push("est?");
     }
-    let mark = if row.flagged {
+    let mark = if row.flagged || row.below_goal {
         Mark::Alert
     } else if row.unreliable {
         Mark::Caution
@@ -418,6 +421,20 @@ pub fn vet_doc(r: &VetReport) -> Doc {
     } else {
         format!("verdict: {} spectator(s) above tolerance", r.flagged)
     });
+    if let Some(g) = r.goal {
+        totals.push(if r.targets_short == 0 {
+            format!(
+                "goal: every target reaches {}",
+                numfmt::population(g).plain()
+            )
+        } else {
+            format!(
+                "goal: {} target(s) below {} (SHORT)",
+                r.targets_short,
+                numfmt::population(g).plain()
+            )
+        });
+    }
     sections.push(Section {
         heading: "Summary".into(),
         table: None,

@@ -81,6 +81,7 @@ pub fn vet_value(r: &VetReport) -> Value {
                 m.insert("second_order_population".into(), json!(p));
             }
             m.insert("flagged".into(), json!(l.flagged));
+            m.insert("below_goal".into(), json!(l.below_goal));
             m.insert("sources".into(), Value::Array(sources));
             m.insert("label".into(), json!(l.label));
             m.insert("estimate_order".into(), json!(order_key(l.order)));
@@ -133,6 +134,8 @@ pub fn vet_value(r: &VetReport) -> Value {
         "lost_population": r.lost_population,
         "levels": levels,
         "flagged_count": r.flagged,
+        "goal": r.goal,
+        "targets_below_goal": r.targets_short,
         "max_spectator_population": r.max_spectator,
         "excluded_drives": excluded,
         "window_s": [r.window.0, r.window.1],
