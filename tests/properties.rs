@@ -12,7 +12,7 @@
 //! - the order of levels, couplings, fields and of the two ids in `between`
 //!   in the file does not change any population (1e-8);
 //! - a common energy offset does not change any population (a global phase;
-//!   1e-8);
+//!   1e-8 plus the rounding floor described below);
 //! - a common time shift does not change any population when the drives form
 //!   a forest and one level starts populated (1e-8). With a loop of drives the
 //!   relative phase of the fields changes with a time shift, because phases
@@ -29,8 +29,19 @@
 //! (a few hundred to a few thousand steps) stay below 1e-8 in population
 //! (common practice, no source: global error ~ steps x local tolerance).
 //!
-//! Case counts are set per property (`ProptestConfig::with_cases`) so the
-//! whole file runs in a few seconds in the optimised test profile.
+//! Case counts are set per property (`ProptestConfig::with_cases`: 128 for
+//! the norm, loss and estimate properties, 64 for the others) so the whole
+//! file runs in about 3 s (`cargo test --release --test properties` on the
+//! 2-core development machine, 2.6-3.9 s measured).
+//!
+//! Each property was checked to fail when the thing it guards is broken
+//! (temporarily, see `docs/reliability.md`), and two of them found real
+//! defects, now covered by `tests/regressions.rs`.
+//!
+//! The energy offset moves optical energies by up to 500 THz; the parsed
+//! detunings then differ by rounding (about one ulp of 1e15 rad/s). That
+//! difference is checked to stay below 8 ulps of the largest angular
+//! frequency, and the population tolerance there is 1e-8 + 2 delta T.
 
 use levelplan::estimate;
 use levelplan::model::Model;
@@ -545,6 +556,15 @@ fn permutation(keys: &[u64], n: usize) -> Vec<usize> {
 /// Tolerance of the file-order, offset and time-shift invariances.
 const INVARIANCE_TOL: f64 = 1e-8;
 
+/// The largest angular frequency of a model: level energies and carriers.
+fn largest_frequency(m: &Model) -> f64 {
+    m.levels
+        .iter()
+        .map(|l| l.omega.abs())
+        .chain(m.fields.iter().map(|f| f.omega.abs()))
+        .fold(0.0, f64::max)
+}
+
 /// The largest difference (rad/s) between two models of the same scheme in
 /// any drive detuning or transition frequency: pure rounding, about one ulp
 /// of the largest angular frequency (0.5-1 rad/s near 1e15 rad/s).
@@ -568,7 +588,7 @@ fn rounding_floor(a: &Model, b: &Model) -> f64 {
 // Properties
 
 proptest! {
-    #![proptest_config(Config::with_cases(48))]
+    #![proptest_config(Config::with_cases(128))]
 
     /// Without decay the evolution is unitary: sum P = 1 at every sample
     /// (to 1e-9) and nothing is lost. Source: unitarity of the Schrodinger
@@ -614,7 +634,7 @@ proptest! {
 }
 
 proptest! {
-    #![proptest_config(Config::with_cases(32))]
+    #![proptest_config(Config::with_cases(64))]
 
     /// The order of levels, couplings and fields in the file, and the order
     /// of the two ids of `between`/`to`/`on`, describe the same physics:
@@ -652,7 +672,12 @@ proptest! {
         let b_text = yaml(&spec, &Writing { energy_offset_mhz: offset as f64, ..Writing::default() });
         let (ma, mb) = (parse(&a_text), parse(&b_text));
         let (sa, sb) = (run(&ma, 0).unwrap(), run(&mb, 0).unwrap());
-        let tol = INVARIANCE_TOL + 2.0 * rounding_floor(&ma, &mb) * ma.window.duration();
+        // The two models may differ by rounding only: a few ulps of the
+        // largest angular frequency (otherwise the offset changed physics).
+        let delta = rounding_floor(&ma, &mb);
+        let ulps = 8.0 * f64::EPSILON * largest_frequency(&ma).max(largest_frequency(&mb));
+        prop_assert!(delta <= ulps, "detunings differ by {:e} rad/s > {:e}", delta, ulps);
+        let tol = INVARIANCE_TOL + 2.0 * delta * ma.window.duration();
         assert_same((&ma, &sa), (&mb, &sb), tol,
             &format!("offset {offset} MHz, tolerance {tol:e}\n{a_text}"))?;
     }
@@ -721,7 +746,7 @@ fn drive_area_bound(m: &Model) -> f64 {
 }
 
 proptest! {
-    #![proptest_config(Config::with_cases(48))]
+    #![proptest_config(Config::with_cases(128))]
 
     /// Weak drives: every population stays below 1e-4, and the estimate of
     /// each level (first order, or second where first order vanishes)
