@@ -213,6 +213,15 @@ pub fn vet(
 /// Largest number of samples `evolve` accepts.
 pub const MAX_SAMPLES: usize = 1_000_000;
 
+/// Largest number of population values (samples x levels) `evolve` writes:
+/// a CSV of at most about 250 MB, held in memory once as numbers and once as
+/// text.
+pub const MAX_EVOLVE_VALUES: usize = 10_000_000;
+
+/// Largest number of points (samples x levels) `evolve --plot` draws: an SVG
+/// of about 8 MB per million points.
+pub const MAX_PLOT_POINTS: usize = 1_000_000;
+
 /// Options of `evolve`.
 #[derive(Debug, Clone, PartialEq)]
 pub struct EvolveOptions {
@@ -234,6 +243,31 @@ pub fn evolve(scheme_path: &Path, opts: &EvolveOptions) -> Result<i32, Error> {
         });
     }
     let (model, prov) = load(scheme_path)?;
+    let values = opts.samples.saturating_mul(model.levels.len());
+    if values > MAX_EVOLVE_VALUES {
+        return Err(Error::BadArgument {
+            what: "--samples".into(),
+            message: format!(
+                "{} samples x {} levels = {values} population values, more than the limit of \
+                 {MAX_EVOLVE_VALUES}; use at most {} samples for this scheme",
+                opts.samples,
+                model.levels.len(),
+                MAX_EVOLVE_VALUES / model.levels.len().max(1)
+            ),
+        });
+    }
+    if opts.plot.is_some() && values > MAX_PLOT_POINTS {
+        return Err(Error::BadArgument {
+            what: "--plot".into(),
+            message: format!(
+                "{} samples x {} levels = {values} points, more than the plot limit of \
+                 {MAX_PLOT_POINTS}; use at most {} samples with --plot",
+                opts.samples,
+                model.levels.len(),
+                MAX_PLOT_POINTS / model.levels.len().max(1)
+            ),
+        });
+    }
     let sol = solve::solve(
         &model,
         &SolveOptions {

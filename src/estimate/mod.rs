@@ -16,10 +16,12 @@
 //! `phi(t) = omega_L t + (chirp/2)(t - t_c)^2 + phase` (absolute time); a
 //! field with `rwa == false` adds the counter-rotating term, i.e. the full
 //! `hbar Omega f cos(phi)` coupling. In the interaction picture of the bare
-//! energies, from initial amplitudes `c_n(0) = sqrt(p_n)`:
+//! energies, from initial amplitudes `c_n(t0) = sqrt(p_n)` at the window
+//! start t0 (interaction picture: `c^I_n = sqrt(p_n) e^{i omega_n t0}`), the
+//! same initial state the propagators start from:
 //!
 //! * first order, level k not initially populated:
-//!   `c_k = -i sum_n c_n(0) sum_drives (Omega/2) integral_window f(t) e^{i theta(t)} dt`
+//!   `c_k = -i sum_n c^I_n sum_drives (Omega/2) integral_window f(t) e^{i theta(t)} dt`
 //!   with `theta = omega_kn t -/+ phi(t)`: absorption (n lower) gives
 //!   `e^{-i (Delta t + chirp term + phase)}`, emission (n upper) the
 //!   conjugate phase, `Delta = omega_L - omega_ab`. Contributions add
@@ -224,6 +226,21 @@ impl<'a> Ctx<'a> {
         self.model.initial[level]
     }
 
+    /// Initial interaction-picture amplitude of a level. The scheme's
+    /// amplitudes sqrt(p) are real at the window start t0 (as the propagators
+    /// take them), so c^I_n = sqrt(p_n) e^{i omega_n t0}; written relative to
+    /// the first initial level, since a common phase changes no population.
+    pub(crate) fn amp0(&self, level: usize) -> C {
+        let m = self.model;
+        let reference = m
+            .initial
+            .iter()
+            .position(|&p| p > 0.0)
+            .map_or(0.0, |r| m.levels[r].omega);
+        let phase = (m.levels[level].omega - reference) * m.window.start;
+        C::from_polar(self.p(level).sqrt(), phase)
+    }
+
     /// The drive's Rabi frequency as seen through its field view.
     #[inline]
     pub(crate) fn rabi(&self, drive: usize) -> f64 {
@@ -345,7 +362,7 @@ pub(crate) fn contribution(
     to: usize,
 ) -> Result<C, EstimateError> {
     let view = &ctx.views[ctx.model.drives[drive].field];
-    let coeff = C::new(0.0, -0.5 * ctx.p(from).sqrt() * ctx.rabi(drive));
+    let coeff = C::new(0.0, -0.5 * ctx.rabi(drive)) * ctx.amp0(from);
     let (ts, n) = terms(ctx, drive, to);
     let mut amp = C::new(0.0, 0.0);
     for t in &ts[..n] {

@@ -70,7 +70,7 @@ pub(crate) fn second_order(
         let mut inner = Vec::new();
         for (i, n) in ctx.first_order_drives(mid) {
             let (ts, nt) = terms(ctx, i, mid);
-            let scale = C::new(0.0, -0.5 * ctx.p(n).sqrt() * ctx.rabi(i));
+            let scale = C::new(0.0, -0.5 * ctx.rabi(i)) * ctx.amp0(n);
             for t in &ts[..nt] {
                 inner.push(NTerm {
                     field: m.drives[i].field,
