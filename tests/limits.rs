@@ -183,15 +183,29 @@ fn quadratic_alias_expansion_is_refused_quickly() {
 
 #[test]
 fn nesting_depth_limit() {
-    let depth = 200;
-    let s = format!("title: {}1{}\n", "[".repeat(depth), "]".repeat(depth));
-    refused(
-        "depth",
-        s.as_bytes(),
-        &["inspect"],
-        2,
-        &["nesting at most 128 levels deep"],
-    );
+    // Flow collections (refused by a linear pre-check) and block mappings
+    // (refused by the YAML library), up to a 1 MiB file.
+    let flow = |depth: usize| format!("title: {}1{}\n", "[".repeat(depth), "]".repeat(depth));
+    let mut block = String::new();
+    let mut d = 0;
+    while block.len() < 1_000_000 {
+        block.push_str(&format!("{}k{d}:\n", " ".repeat(d)));
+        d += 1;
+    }
+    for (name, text) in [
+        ("depth", flow(200)),
+        ("depth-1MiB", flow(520_000)),
+        ("depth-block", block),
+    ] {
+        let (_, secs) = refused(
+            name,
+            text.as_bytes(),
+            &["inspect"],
+            2,
+            &["nesting at most 128 levels deep"],
+        );
+        assert!(secs < 2.0, "{name}: took {secs} s");
+    }
 }
 
 /// The points limit of one `samples` envelope (100,000) cannot be reached

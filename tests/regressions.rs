@@ -180,3 +180,28 @@ fields:
     assert!(p > 5e-4, "exact {p}");
     assert!((p - p_est).abs() < 2e-2 * p, "exact {p}, estimate {p_est}");
 }
+
+// Found while measuring the YAML limits (not by the fuzzer, whose inputs
+// stay a few kB): the YAML library refuses nesting deeper than 128 only
+// after its scanner has read the whole document, and that scanner
+// re-examines every open flow level at each token, so the time grows with
+// the square of the depth: 100,000 nested '[' took 33 s, a 1 MiB file of
+// them about 14 minutes. `yaml::check_flow_depth` now refuses them in one
+// pass.
+#[test]
+fn deeply_nested_flow_collections_are_refused_in_linear_time() {
+    for (open, close) in [("[", "]"), ("{a: ", "}")] {
+        let n = 500_000 / open.len();
+        let text = format!("title: {}1{}\n", open.repeat(n), close.repeat(n));
+        let t = std::time::Instant::now();
+        let e = scheme::parse(&text, "deep.yaml").unwrap_err();
+        let dt = t.elapsed().as_secs_f64();
+        assert!(dt < 1.0, "took {dt} s");
+        let d = &e.diagnostics[0];
+        assert!(
+            d.expected.contains("nesting at most 128 levels deep"),
+            "{d:?}"
+        );
+        assert_eq!(d.line, Some(1));
+    }
+}
