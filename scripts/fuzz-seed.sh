@@ -8,7 +8,7 @@
 # Usage: scripts/fuzz-seed.sh            (from the repository root)
 set -euo pipefail
 cd "$(dirname "$0")/.."
-for target in scheme_parse inspect_path; do
+for target in scheme_parse inspect_path vet_small; do
   mkdir -p "fuzz/corpus/$target"
 done
 python3 - <<'PY'
@@ -56,12 +56,12 @@ for name in ["tests/scheme_errors.rs", "tests/scheme_robustness.rs", "tests/regr
             seeds.append(rust_str(s).encode())
 
 n = 0
-for target in ["scheme_parse", "inspect_path"]:
+for target in ["scheme_parse", "inspect_path", "vet_small"]:
     d = root / "fuzz" / "corpus" / target
     for s in seeds:
         f = d / hashlib.sha1(s).hexdigest()
         if not f.exists():
             f.write_bytes(s)
             n += 1
-print(f"{len(seeds)} seeds ({n} new files) in fuzz/corpus/{{scheme_parse,inspect_path}}")
+print(f"{len(seeds)} seeds ({n} new files) in fuzz/corpus/{{scheme_parse,inspect_path,vet_small}}")
 PY

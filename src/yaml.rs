@@ -232,6 +232,19 @@ pub fn check_flow_depth(text: &str) -> Result<(), YamlError> {
                     }
                     // A bracket inside a plain scalar is an ordinary character.
                     b'[' | b'{' | b']' | b'}' => prev = b'x',
+                    // In block context ':', '-' and '?' are indicators only
+                    // when followed by a blank; `key:{{` is one plain scalar
+                    // (found by fuzzing: the pre-check refused such a text
+                    // that the library reads).
+                    b':' | b'-' | b'?'
+                        if depth == 0
+                            && !matches!(
+                                b.get(i + 1),
+                                None | Some(b' ' | b'\t' | b'\n' | b'\r')
+                            ) =>
+                    {
+                        prev = b'x'
+                    }
                     _ => prev = c,
                 }
             }

@@ -205,3 +205,18 @@ fn deeply_nested_flow_collections_are_refused_in_linear_time() {
         assert_eq!(d.line, Some(1));
     }
 }
+
+/// Found by fuzzing (`scheme_parse`): the flow-depth pre-check took the `{`
+/// of `energy:{{{...` for a flow mapping, but without a blank after the colon
+/// the whole value is one plain scalar, which the YAML library reads. The
+/// pre-check must never refuse what the library reads.
+#[test]
+fn colon_without_blank_does_not_open_flow_collections() {
+    let deep = "{".repeat(300);
+    let text = format!("title: base\nlevels:\n  g:\n    energy:{deep}\n");
+    assert!(levelplan::yaml::check_flow_depth(&text).is_ok());
+    assert!(levelplan::yaml::value_from_str(&text).is_ok());
+    // A real flow mapping nested that deep is still refused.
+    let real = format!("a: {}{}\n", "[".repeat(300), "]".repeat(300));
+    assert!(levelplan::yaml::check_flow_depth(&real).is_err());
+}
