@@ -563,14 +563,23 @@ pub fn thread_pool(jobs: Option<usize>) -> Result<rayon::ThreadPool, Error> {
         .map_err(|e| bad("--jobs", format!("could not start {n} threads: {e}")))
 }
 
+/// Most points a worker claims at once (see [`run_ordered`]).
+const MAX_CLAIM: usize = 16;
+
 /// Evaluate `eval(i)` for every flat index in `range` on the pool's threads
 /// and hand each result to `sink` in index order, on the calling thread.
 ///
-/// Indices are handed out in increasing order, so at most about one result
-/// per thread waits for an earlier one: `sink` can append to a file as the
-/// scan goes. The first error (of `eval` or `sink`) stops the hand-out; the
-/// points already running finish, nothing later reaches the sink, and the
-/// error is returned.
+/// Indices are handed out in increasing order, in claims that shrink as the
+/// range runs out (guided scheduling: a claim is the remaining count over
+/// eight times the thread count, between 1 and [`MAX_CLAIM`]). A worker sends
+/// a whole claim at once, so the calling thread is woken once per claim
+/// rather than once per point: on a virtual machine each cross-core wake-up
+/// costs tens of microseconds, comparable to a small point's solve. The last
+/// claims are single points, so the threads finish together. At most about
+/// one claim per thread waits for an earlier one: `sink` can append to a
+/// file as the scan goes. The first error (of `eval` or `sink`) stops the
+/// hand-out; the points already running finish, nothing later reaches the
+/// sink, and the error is returned.
 pub fn run_ordered<R, F, S>(
     pool: &rayon::ThreadPool,
     range: Range<usize>,
@@ -588,7 +597,8 @@ where
     let next = AtomicUsize::new(range.start);
     let stop = AtomicBool::new(false);
     let end = range.end;
-    let (tx, rx) = mpsc::channel::<(usize, Result<R, Error>)>();
+    type Batch<R> = Vec<(usize, Result<R, Error>)>;
+    let (tx, rx) = mpsc::channel::<Batch<R>>();
     let workers = pool.current_num_threads().max(1).min(range.len());
     let (next, stop, eval) = (&next, &stop, &eval);
     let mut result = Ok(());
@@ -599,15 +609,23 @@ where
                     let tx = tx.clone();
                     s.spawn(move |_| {
                         while !stop.load(Ordering::Relaxed) {
-                            let i = next.fetch_add(1, Ordering::Relaxed);
-                            if i >= end {
+                            let Some(claim) = claim(next, end, workers) else {
                                 break;
+                            };
+                            let mut batch = Vec::with_capacity(claim.len());
+                            for i in claim {
+                                let r = eval(i);
+                                let failed = r.is_err();
+                                batch.push((i, r));
+                                if failed {
+                                    stop.store(true, Ordering::Relaxed);
+                                    break;
+                                }
+                                if stop.load(Ordering::Relaxed) {
+                                    break;
+                                }
                             }
-                            let r = eval(i);
-                            if r.is_err() {
-                                stop.store(true, Ordering::Relaxed);
-                            }
-                            if tx.send((i, r)).is_err() {
+                            if tx.send(batch).is_err() {
                                 break;
                             }
                         }
@@ -618,7 +636,7 @@ where
         });
         let mut pending: BTreeMap<usize, R> = BTreeMap::new();
         let mut want = range.start;
-        for (i, r) in rx.iter() {
+        for (i, r) in rx.iter().flatten() {
             if result.is_err() {
                 continue;
             }
@@ -642,6 +660,23 @@ where
         }
     });
     result
+}
+
+/// Claim the next indices below `end` for one worker (guided scheduling),
+/// or None when none are left.
+fn claim(next: &AtomicUsize, end: usize, workers: usize) -> Option<Range<usize>> {
+    let mut start = next.load(Ordering::Relaxed);
+    loop {
+        if start >= end {
+            return None;
+        }
+        let size = ((end - start) / (8 * workers)).clamp(1, MAX_CLAIM);
+        match next.compare_exchange_weak(start, start + size, Ordering::Relaxed, Ordering::Relaxed)
+        {
+            Ok(_) => return Some(start..start + size),
+            Err(now) => start = now,
+        }
+    }
 }
 
 #[cfg(test)]
@@ -850,6 +885,22 @@ mod tests {
             let want: Vec<(usize, u64)> = (5..205).map(|i| (i, (i * i) as u64)).collect();
             assert_eq!(seen, want, "jobs {jobs}");
         }
+    }
+
+    #[test]
+    fn claims_cover_the_range_once_and_shrink_to_single_points() {
+        let next = AtomicUsize::new(3);
+        let mut claims = Vec::new();
+        while let Some(c) = claim(&next, 1004, 2) {
+            claims.push(c);
+        }
+        let flat: Vec<usize> = claims.iter().flat_map(|c| c.clone()).collect();
+        assert_eq!(flat, (3..1004).collect::<Vec<_>>());
+        assert_eq!(claims[0].len(), MAX_CLAIM);
+        assert!(claims.windows(2).all(|w| w[1].len() <= w[0].len()));
+        // The last 16 points (remaining < 8 * workers) go one at a time.
+        assert!(claims.iter().rev().take(16).all(|c| c.len() == 1));
+        assert!(claims.len() < 1001 / 4, "{} claims", claims.len());
     }
 
     #[test]
