@@ -131,24 +131,43 @@ pub fn from_value<T: DeserializeOwned>(value: Value) -> Result<T, YamlError> {
 /// tokenised the whole document, and that scanner re-examines every open
 /// flow level at each token: 100,000 nested `[` took 33 s and a 1 MiB file
 /// of them about 14 minutes (measured, release build). This pass counts an
-/// opening bracket outside quoted scalars and comments where it can open a
-/// collection (inside a flow collection, or at the start of a block value),
-/// so it may undercount unusual files (the backend's own limit then still
-/// applies) but never refuses a file the backend would accept.
+/// opening bracket outside quoted scalars, block plain scalars, block
+/// scalars and comments where it can open a collection (inside a flow
+/// collection, or where a block node may start), so it may undercount
+/// unusual files (the backend's own limit then still applies) but never
+/// refuses a file the backend would accept.
+///
+/// A plain scalar in block context runs to the end of its line except at
+/// `": "` or `" #"`, and continues on the following lines that are indented
+/// deeper than the block collection holding it (any line at top level), up
+/// to a comment or a document marker: brackets there are text. Both rules
+/// were found by fuzzing (the `scheme_parse` target's differential check),
+/// see `docs/reliability.md`.
 pub fn check_flow_depth(text: &str) -> Result<(), YamlError> {
     let b = text.as_bytes();
+    let blank_at = |j: usize| matches!(b.get(j), None | Some(b' ' | b'\t' | b'\n' | b'\r'));
     let mut depth = 0usize;
-    // Where a scalar or a collection may start: a line start, or after one
-    // of these indicators.
+    // Where a node may start: a line start, or after one of these indicators.
     let opens = |p: u8| matches!(p, b'\n' | b'[' | b'{' | b',' | b':' | b'-' | b'?');
     // Last significant byte on this line outside scalars (b'\n' at a line start).
     let mut prev = b'\n';
     // Indentation of the current line (set at its first non-blank byte).
     let mut indent = 0usize;
     let mut line_start = 0usize;
+    // A block plain scalar that is still open: Some(indentation of the block
+    // collection holding it; -1 at top level).
+    let mut plain: Option<isize> = None;
+    // Indentation of the block collection that holds a node starting here:
+    // set by `key:` (the key's column), `- ` and `? ` (their column); -1
+    // once a node has started.
+    let mut parent: isize = -1;
+    // Column where the current block entry (a key or a node) starts.
+    let mut entry: isize = 0;
+    let mut entry_pending = false;
     let mut i = 0;
     while i < b.len() {
         let c = b[i];
+        let col = i - line_start;
         match c {
             b'\n' => {
                 prev = b'\n';
@@ -156,13 +175,49 @@ pub fn check_flow_depth(text: &str) -> Result<(), YamlError> {
             }
             b' ' | b'\t' | b'\r' => {}
             b'#' if i == 0 || matches!(b[i - 1], b' ' | b'\t' | b'\n' | b'\r') => {
+                // A comment ends a plain scalar: it does not continue past it.
+                plain = None;
                 while i + 1 < b.len() && b[i + 1] != b'\n' {
                     i += 1;
                 }
             }
             _ => {
                 if prev == b'\n' {
-                    indent = i - line_start;
+                    indent = col;
+                    if depth == 0 {
+                        entry = col as isize;
+                        entry_pending = false;
+                        let marker = b[i..].starts_with(b"---") || b[i..].starts_with(b"...");
+                        if col == 0 && marker && blank_at(i + 3) {
+                            // A document marker ends any scalar; a node may
+                            // follow it on its line.
+                            plain = None;
+                            parent = -1;
+                            prev = b'-';
+                            i += 3;
+                            continue;
+                        }
+                        if plain.is_some_and(|p| col as isize <= p) {
+                            plain = None;
+                        }
+                    }
+                }
+                if entry_pending {
+                    entry = col as isize;
+                    entry_pending = false;
+                }
+                if depth == 0 && plain.is_some() {
+                    // Inside a block plain scalar only ": " ends it (" #" is
+                    // a comment, above); brackets, quotes, "- " are text.
+                    if c == b':' && blank_at(i + 1) {
+                        plain = None;
+                        parent = entry;
+                        prev = b':';
+                    } else {
+                        prev = b'x';
+                    }
+                    i += 1;
+                    continue;
                 }
                 match c {
                     b'"' | b'\'' if opens(prev) => {
@@ -179,6 +234,9 @@ pub fn check_flow_depth(text: &str) -> Result<(), YamlError> {
                                 }
                             }
                             i += 1;
+                        }
+                        if depth == 0 {
+                            parent = -1;
                         }
                         prev = c;
                     }
@@ -202,6 +260,7 @@ pub fn check_flow_depth(text: &str) -> Result<(), YamlError> {
                             }
                             i = end - 1;
                         }
+                        parent = -1;
                     }
                     b'!' | b'&' if opens(prev) => {
                         // A tag or an anchor before a node: skip it, the node
@@ -217,13 +276,14 @@ pub fn check_flow_depth(text: &str) -> Result<(), YamlError> {
                             return Err(YamlError {
                                 kind: YamlErrorKind::TooDeep,
                                 line: Some(line),
-                                column: Some(i - line_start + 1),
+                                column: Some(col + 1),
                                 path: None,
                                 message: format!(
                                     "flow collections nested more than {MAX_DEPTH} levels deep"
                                 ),
                             });
                         }
+                        parent = -1;
                         prev = c;
                     }
                     b']' | b'}' if depth > 0 => {
@@ -232,19 +292,32 @@ pub fn check_flow_depth(text: &str) -> Result<(), YamlError> {
                     }
                     // A bracket inside a plain scalar is an ordinary character.
                     b'[' | b'{' | b']' | b'}' => prev = b'x',
-                    // In block context ':', '-' and '?' are indicators only
-                    // when followed by a blank; `key:{{` is one plain scalar
-                    // (found by fuzzing: the pre-check refused such a text
-                    // that the library reads).
-                    b':' | b'-' | b'?'
-                        if depth == 0
-                            && !matches!(
-                                b.get(i + 1),
-                                None | Some(b' ' | b'\t' | b'\n' | b'\r')
-                            ) =>
-                    {
-                        prev = b'x'
+                    // Block indicators: ':', '-' and '?' followed by a blank.
+                    b':' | b'-' | b'?' if depth == 0 && blank_at(i + 1) => {
+                        if c == b':' {
+                            parent = entry;
+                        } else {
+                            parent = col as isize;
+                            entry_pending = true;
+                        }
+                        prev = c;
                     }
+                    // A block plain scalar starts where a node may start and
+                    // the byte is not an indicator (`key:{{` is one scalar).
+                    _ if depth == 0
+                        && opens(prev)
+                        && !matches!(
+                            c,
+                            b'*' | b'%' | b'@' | b'`' | b',' | b'|' | b'>' | b'!' | b'&'
+                        ) =>
+                    {
+                        plain = Some(parent);
+                        parent = -1;
+                        prev = b'x';
+                    }
+                    // Flow context, or after a complete node: `:`, `-` and
+                    // `?` without a blank are text at depth 0.
+                    b':' | b'-' | b'?' if depth == 0 => prev = b'x',
                     _ => prev = c,
                 }
             }
@@ -559,6 +632,47 @@ mod tests {
             "]".repeat(MAX_DEPTH + 1)
         );
         assert!(check_flow_depth(&deep).is_err());
+    }
+
+    /// Block plain scalars run on across lines and past "- ", ", ", quotes
+    /// and brackets; the pre-check must read them as text (the first case
+    /// is the fuzzer's finding, shortened), yet still refuse real nesting
+    /// placed right after such scalars.
+    #[test]
+    fn flow_depth_check_follows_block_plain_scalars() {
+        let many = "[".repeat(300);
+        let texts = [
+            format!("# comment\n  text at top level\n{many}ay\"x{many}\n# end\n"),
+            format!("a: x - {many}\n"),
+            format!("a: x, {many}\n"),
+            format!("a: x ? {many}\n"),
+            format!("a: it's\n  {many}\n"),
+            format!("- x\n  {many}\n"),
+            format!("a: b\n  c {many}\n\n  d {many}\n"),
+            format!("- k: v\n   {many}\n"),
+            format!("a:\n  x\n  {many}\n"),
+        ];
+        for text in &texts {
+            assert!(value_from_str(text).is_ok(), "backend refuses {text:?}");
+            assert!(check_flow_depth(text).is_ok(), "pre-check refuses {text:?}");
+        }
+        let deep = format!("{}1{}", "[".repeat(300), "]".repeat(300));
+        let bombs = [
+            format!("- x\n- {deep}\n"),
+            format!("a: x\nb: {deep}\n"),
+            format!("a:\n  x\nb: {deep}\n"),
+            format!("a: x # c\nb: {deep}\n"),
+            format!("--- {deep}\n"),
+            format!("a\n--- {deep}\n"),
+            format!("k:\n  - x\n  - {deep}\n"),
+            format!("- - x\n  - {deep}\n"),
+            format!("- k: v\n  j: {deep}\n"),
+            format!("? x\n: {deep}\n"),
+        ];
+        for text in &bombs {
+            let e = check_flow_depth(text).unwrap_err();
+            assert_eq!(e.kind, YamlErrorKind::TooDeep, "{text:?}");
+        }
     }
 
     #[test]

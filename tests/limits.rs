@@ -301,3 +301,49 @@ fn evolve_output_size_limits() {
     );
     std::fs::remove_dir_all(&dir).unwrap();
 }
+
+/// Times on the pulse axis are bounded by `scheme::MAX_TIME_S` (1e4 s);
+/// lifetimes are not. Found by fuzzing (`vet_small`): a pulse of 2e60 s
+/// overflowed the exact propagator's sub-step count.
+#[test]
+fn pulse_axis_time_limit() {
+    let scheme = |duration: &str, lifetime: &str| {
+        format!(
+            "levels:\n  g: {{energy: 0 eV}}\n  e: {{energy: 1 eV, lifetime: \"{lifetime}\"}}\n\
+             initial: g\ncouplings:\n  - {{between: [g, e], dipole: 1}}\nfields:\n  p:\n    \
+             tuned: {{to: [g, e], detuning: 0 MHz}}\n    rabi: {{on: [g, e], value: 1 Hz}}\n    \
+             envelope: {{shape: rectangular, start: 0 s, duration: \"{duration}\"}}\n"
+        )
+    };
+    let d = scratch("time-limit-ok");
+    let p = d.join("s.yaml");
+    std::fs::write(&p, scheme("1e4 s", "1e9 s")).unwrap();
+    let ok = bin().args(["inspect"]).arg(&p).output().unwrap();
+    assert_eq!(
+        ok.status.code(),
+        Some(0),
+        "{}",
+        String::from_utf8_lossy(&ok.stderr)
+    );
+    refused(
+        "time-limit",
+        scheme("1.0001e4 s", "1 s").as_bytes(),
+        &["vet"],
+        2,
+        &[
+            "fields.p.envelope.duration",
+            "at most 1e4 s",
+            "'1.0001e4 s'",
+        ],
+    );
+    let huge = format!("2{} ns", "0".repeat(69));
+    let t = Instant::now();
+    refused(
+        "time-limit-huge",
+        scheme(&huge, "1 s").as_bytes(),
+        &["vet"],
+        2,
+        &["at most 1e4 s"],
+    );
+    assert!(t.elapsed().as_secs_f64() < 5.0);
+}

@@ -132,22 +132,40 @@ fn extreme_values_are_refused_not_propagated() {
         \x20   envelope: {shape: gaussian, center: 0 s, sigma: 1 ns}\n";
     assert!(scheme::parse(base, "x").is_ok());
     let cases = [
-        ("wavelength: 1000 nm", "wavelength: 1e-320 m", "fields.L"),
-        ("lifetime: 10 ns", "lifetime: 1e-320 s", "levels.e"),
-        ("sigma: 1 ns", "sigma: 1e308 s", "fields.L.envelope"),
+        (
+            "wavelength: 1000 nm",
+            "wavelength: 1e-320 m",
+            "fields.L",
+            "out-of-range",
+        ),
+        (
+            "lifetime: 10 ns",
+            "lifetime: 1e-320 s",
+            "levels.e",
+            "out-of-range",
+        ),
+        // Refused by the pulse-axis time limit (scheme::MAX_TIME_S) before
+        // the envelope is built.
+        (
+            "sigma: 1 ns",
+            "sigma: 1e308 s",
+            "fields.L.envelope.sigma",
+            "'1e308 s'",
+        ),
         (
             "intensity: 1 W/cm^2",
             "power: 1e300 W\n    waist: 1e-300 m",
             "fields.L",
+            "out-of-range",
         ),
     ];
-    for (from, to, path) in cases {
+    for (from, to, path, found) in cases {
         let text = base.replace(from, to);
         let e = scheme::parse(&text, "x").unwrap_err();
         assert!(
             e.diagnostics
                 .iter()
-                .any(|d| d.path == path && d.found.contains("out-of-range")),
+                .any(|d| d.path == path && d.found.contains(found)),
             "{to}: {e}"
         );
     }

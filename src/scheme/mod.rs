@@ -35,6 +35,12 @@ pub const MAX_COUPLINGS: usize = 5_000;
 pub const MAX_DRIVES: usize = 10_000;
 /// Most points of one `samples` envelope.
 pub const MAX_SAMPLE_POINTS: usize = 100_000;
+/// Largest magnitude of a time on the pulse axis (window, envelope starts,
+/// centres, durations, widths, sample times), in seconds: 10^4 s (2.8 h),
+/// far beyond any coherent excitation. Beyond it double-precision phases
+/// omega t lose the accuracy the propagators promise (found by fuzzing: a
+/// pulse of 2e60 s overflowed the step count). Lifetimes are not bounded.
+pub const MAX_TIME_S: f64 = 1.0e4;
 /// Most problems listed for one file; the rest are counted in a last line.
 pub const MAX_DIAGNOSTICS: usize = 100;
 /// Initial populations must sum to 1 within this.

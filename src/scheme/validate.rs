@@ -10,7 +10,7 @@ use super::locate::{KeyPath, Locator};
 use super::raw::{Id, Initial, RawEnvelope, RawField, RawScheme, Scalar};
 use super::{
     Diagnostic, MAX_COUPLINGS, MAX_DIAGNOSTICS, MAX_DRIVES, MAX_FIELDS, MAX_LEVELS,
-    MAX_SAMPLE_POINTS, POPULATION_SUM_TOLERANCE,
+    MAX_SAMPLE_POINTS, MAX_TIME_S, POPULATION_SUM_TOLERANCE,
 };
 use crate::model::{
     gaussian_sigma_from_intensity_fwhm, Coupling, Dipole, Drive, Envelope, Field, Level, Method,
@@ -185,6 +185,22 @@ impl<'a> Ctx<'a> {
             return None;
         }
         self.quantity(path, s, kind, sign)
+    }
+
+    /// A required time on the pulse axis: at most [`MAX_TIME_S`] in
+    /// magnitude.
+    fn axis_time(&mut self, path: &KeyPath, s: &Option<Scalar>, sign: Sign) -> Option<f64> {
+        let v = self.req_quantity(path, s, Kind::Time, sign)?;
+        if v.abs() > MAX_TIME_S {
+            let text = s.as_ref().map(|x| x.text()).unwrap_or_default();
+            self.push(
+                path,
+                format!("a time of at most {MAX_TIME_S:.0e} s in magnitude (2.8 hours)"),
+                format!("'{}'", text.trim()),
+            );
+            return None;
+        }
+        Some(v)
     }
 
     /// A bare number (no unit) within [lo, hi] (inclusive unless stated).
@@ -928,8 +944,8 @@ pub(crate) fn validate(raw: &RawScheme, ctx: &mut Ctx) -> Option<Model> {
     let wp = root.k("window");
     let window = match &raw.window {
         Some(w) => {
-            let s = ctx.req_quantity(&wp.k("start"), &w.start, Kind::Time, Sign::Any);
-            let e = ctx.req_quantity(&wp.k("end"), &w.end, Kind::Time, Sign::Any);
+            let s = ctx.axis_time(&wp.k("start"), &w.start, Sign::Any);
+            let e = ctx.axis_time(&wp.k("end"), &w.end, Sign::Any);
             match (s, e) {
                 (Some(s), Some(e)) if e > s => Some(Window { start: s, end: e }),
                 (Some(_), Some(_)) => {
@@ -1356,12 +1372,9 @@ fn validate_envelope(ctx: &mut Ctx, e: &RawEnvelope, path: &KeyPath) -> Option<E
             ok = false;
         }
     }
-    let time = |ctx: &mut Ctx, k: &str, s: &Option<Scalar>| {
-        ctx.req_quantity(&path.k(k), s, Kind::Time, Sign::Any)
-    };
-    let dur = |ctx: &mut Ctx, k: &str, s: &Option<Scalar>| {
-        ctx.req_quantity(&path.k(k), s, Kind::Time, Sign::Positive)
-    };
+    let time = |ctx: &mut Ctx, k: &str, s: &Option<Scalar>| ctx.axis_time(&path.k(k), s, Sign::Any);
+    let dur =
+        |ctx: &mut Ctx, k: &str, s: &Option<Scalar>| ctx.axis_time(&path.k(k), s, Sign::Positive);
     let env = match shape.as_str() {
         "rectangular" | "sin2" | "blackman" => {
             let start = time(ctx, "start", &e.start);
@@ -1438,7 +1451,7 @@ fn validate_envelope(ctx: &mut Ctx, e: &RawEnvelope, path: &KeyPath) -> Option<E
                     good = false;
                     continue;
                 }
-                let t = ctx.req_quantity(&ptp.i(0), &pt[0], Kind::Time, Sign::Any);
+                let t = ctx.axis_time(&ptp.i(0), &pt[0], Sign::Any);
                 let v = match &pt[1] {
                     None => {
                         ctx.missing(&ptp.i(1), "an envelope value (a bare number >= 0)");

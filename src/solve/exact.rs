@@ -187,24 +187,32 @@ pub(crate) fn propagate(
             ),
         });
     }
-    let count = |stretch: f64| -> u64 {
+    // Counted in f64: a segment may ask for more sub-steps than u64 holds
+    // (found by fuzzing `vet_small`: a 2e60 s pulse overflowed the sum).
+    let count = |stretch: f64| -> f64 {
         segs.iter()
             .map(|s| {
                 let len = s.b - s.a;
                 if s.dt_max.is_finite() {
-                    ((len / (s.dt_max * stretch)).ceil() as u64).max(1)
+                    (len / (s.dt_max * stretch)).ceil().max(1.0)
                 } else {
-                    1
+                    1.0
                 }
             })
             .sum()
     };
     // Peaks are sampled more coarsely where the budget would be exceeded
     // (the final state stays exact).
+    let budget = opts.step_budget as f64;
     let mut stretch = 1.0;
     let mut total = count(stretch);
-    while total > opts.step_budget {
-        stretch *= 2.0 * total as f64 / opts.step_budget as f64;
+    while total > budget {
+        if !total.is_finite() {
+            return Err(SolveError::NonFinite {
+                stage: "sub-step count of the exact propagator".into(),
+            });
+        }
+        stretch *= 2.0 * total / budget;
         total = count(stretch);
     }
 
