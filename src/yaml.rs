@@ -144,6 +144,15 @@ pub fn from_value<T: DeserializeOwned>(value: Value) -> Result<T, YamlError> {
 /// were found by fuzzing (the `scheme_parse` target's differential check),
 /// see `docs/reliability.md`.
 pub fn check_flow_depth(text: &str) -> Result<(), YamlError> {
+    // The YAML library also breaks lines at CR, NEL, LS and PS: map them to
+    // LF so that this pass sees the lines the library sees (a comment or a
+    // plain scalar ends there).
+    let breaks = ['\r', '\u{85}', '\u{2028}', '\u{2029}'];
+    let text: std::borrow::Cow<str> = if text.contains(breaks) {
+        text.replace("\r\n", "\n").replace(breaks, "\n").into()
+    } else {
+        text.into()
+    };
     let b = text.as_bytes();
     let blank_at = |j: usize| matches!(b.get(j), None | Some(b' ' | b'\t' | b'\n' | b'\r'));
     let mut depth = 0usize;
@@ -672,6 +681,25 @@ mod tests {
         for text in &bombs {
             let e = check_flow_depth(text).unwrap_err();
             assert_eq!(e.kind, YamlErrorKind::TooDeep, "{text:?}");
+        }
+        // The library breaks lines at CR, NEL, LS and PS as well as LF; so
+        // does the pre-check (a CR-only file would otherwise be one line,
+        // one plain scalar, and hide the nesting).
+        for br in ["\r", "\r\n", "\u{85}", "\u{2028}", "\u{2029}"] {
+            let text = format!("a: x{br}  y {many}{br}b: z{br}");
+            assert!(value_from_str(&text).is_ok(), "backend refuses {text:?}");
+            assert!(
+                check_flow_depth(&text).is_ok(),
+                "pre-check refuses {text:?}"
+            );
+            for text in [
+                format!("- x{br}- {deep}{br}"),
+                format!("# c{br}- {deep}{br}"),
+            ] {
+                let e = check_flow_depth(&text).unwrap_err();
+                assert_eq!(e.kind, YamlErrorKind::TooDeep, "{text:?}");
+                assert_eq!(e.line, Some(2), "{text:?}");
+            }
         }
     }
 
