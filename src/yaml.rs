@@ -144,6 +144,8 @@ pub fn from_value<T: DeserializeOwned>(value: Value) -> Result<T, YamlError> {
 /// were found by fuzzing (the `scheme_parse` target's differential check),
 /// see `docs/reliability.md`.
 pub fn check_flow_depth(text: &str) -> Result<(), YamlError> {
+    // `prev` after a quoted scalar (a quote inside a plain scalar is text).
+    const QUOTED: u8 = 0;
     // The YAML library also breaks lines at CR, NEL, LS and PS: map them to
     // LF so that this pass sees the lines the library sees (a comment or a
     // plain scalar ends there).
@@ -160,9 +162,8 @@ pub fn check_flow_depth(text: &str) -> Result<(), YamlError> {
     let opens = |p: u8| matches!(p, b'\n' | b'[' | b'{' | b',' | b':' | b'-' | b'?');
     // Last significant byte on this line outside scalars (b'\n' at a line start).
     let mut prev = b'\n';
-    // Indentation of the current line (set at its first non-blank byte).
-    let mut indent = 0usize;
     let mut line_start = 0usize;
+    let mut fresh_line = true;
     // A block plain scalar that is still open: Some(indentation of the block
     // collection holding it; -1 at top level).
     let mut plain: Option<isize> = None;
@@ -181,9 +182,16 @@ pub fn check_flow_depth(text: &str) -> Result<(), YamlError> {
             b'\n' => {
                 prev = b'\n';
                 line_start = i + 1;
+                fresh_line = true;
             }
             b' ' | b'\t' | b'\r' => {}
-            b'#' if i == 0 || matches!(b[i - 1], b' ' | b'\t' | b'\n' | b'\r') => {
+            // A comment: after a blank, or (as the library reads it) right
+            // after a token that is not a plain scalar, e.g. `"a"#c`, `[#c`.
+            b'#' if i == 0
+                || matches!(b[i - 1], b' ' | b'\t' | b'\n' | b'\r')
+                || (depth == 0 && plain.is_none() && prev != b'x')
+                || (depth > 0 && matches!(prev, b'[' | b'{' | b']' | b'}' | b',' | QUOTED)) =>
+            {
                 // A comment ends a plain scalar: it does not continue past it.
                 plain = None;
                 while i + 1 < b.len() && b[i + 1] != b'\n' {
@@ -191,8 +199,10 @@ pub fn check_flow_depth(text: &str) -> Result<(), YamlError> {
                 }
             }
             _ => {
-                if prev == b'\n' {
-                    indent = col;
+                if fresh_line {
+                    // The line's first significant byte (a tag or an anchor
+                    // before a node does not move the node's column).
+                    fresh_line = false;
                     if depth == 0 {
                         entry = col as isize;
                         entry_pending = false;
@@ -247,28 +257,57 @@ pub fn check_flow_depth(text: &str) -> Result<(), YamlError> {
                         if depth == 0 {
                             parent = -1;
                         }
-                        prev = c;
+                        prev = QUOTED;
                     }
                     b'|' | b'>' if depth == 0 && opens(prev) => {
-                        // A block scalar: its header line, then every line
-                        // that is blank or indented deeper than this one.
+                        // A block scalar, read as the library reads it: an
+                        // optional indentation digit in the header; the body
+                        // indentation is the digit above the holding
+                        // collection, else that of the first non-blank line
+                        // (or of a deeper blank line before it), at least
+                        // one deeper than the holding collection and at
+                        // least 1; the body runs while lines are blank or
+                        // indented that far.
+                        let mut explicit = None;
+                        for k in 1..=2 {
+                            match b.get(i + k) {
+                                Some(&d @ b'1'..=b'9') => explicit = Some(usize::from(d - b'0')),
+                                Some(b'+' | b'-') => {}
+                                _ => break,
+                            }
+                        }
                         while i + 1 < b.len() && b[i + 1] != b'\n' {
                             i += 1;
                         }
-                        // Here b[i] ends a line; the next one starts at i + 2.
-                        while i + 2 < b.len() {
-                            let next = i + 2;
+                        let min = (parent + 1).max(1) as usize;
+                        let mut need = explicit.map(|d| parent.max(0) as usize + d);
+                        let mut max_blank = 0usize;
+                        // pos: the line break ending the last line read.
+                        let mut pos = i + 1;
+                        while pos < b.len() {
+                            let next = pos + 1;
                             let end = b[next..]
                                 .iter()
                                 .position(|&x| x == b'\n')
                                 .map_or(b.len(), |p| next + p);
-                            let body = &b[next..end];
-                            let lead = body.iter().take_while(|&&x| x == b' ').count();
-                            if !(lead > indent || body.iter().all(|x| x.is_ascii_whitespace())) {
+                            let line = &b[next..end];
+                            let lead = line.iter().take_while(|&&x| x == b' ').count();
+                            if line[lead..]
+                                .iter()
+                                .all(|&x| matches!(x, b' ' | b'\t' | b'\r'))
+                            {
+                                if need.is_none() {
+                                    max_blank = max_blank.max(lead);
+                                }
+                                pos = end;
+                                continue;
+                            }
+                            if lead < *need.get_or_insert(lead.max(max_blank).max(min)) {
                                 break;
                             }
-                            i = end - 1;
+                            pos = end;
                         }
+                        i = pos - 1;
                         parent = -1;
                     }
                     b'!' | b'&' if opens(prev) => {
@@ -660,6 +699,11 @@ mod tests {
             format!("a: b\n  c {many}\n\n  d {many}\n"),
             format!("- k: v\n   {many}\n"),
             format!("a:\n  x\n  {many}\n"),
+            // Found by the differential test in tests/scheme_robustness.rs:
+            format!("\"q[\"#{many}\n"),
+            format!("!!str key: x\n  {many}\n"),
+            format!(" |\n {many}\n"),
+            format!("- |2\n   {many}\n"),
         ];
         for text in &texts {
             assert!(value_from_str(text).is_ok(), "backend refuses {text:?}");
@@ -677,9 +721,12 @@ mod tests {
             format!("- - x\n  - {deep}\n"),
             format!("- k: v\n  j: {deep}\n"),
             format!("? x\n: {deep}\n"),
+            // Block scalars end where the library ends them.
+            format!("- - |\n  - {deep}\n"),
+            format!("a: |1\n  x\nb: {deep}\n"),
         ];
         for text in &bombs {
-            let e = check_flow_depth(text).unwrap_err();
+            let e = check_flow_depth(text).expect_err(text);
             assert_eq!(e.kind, YamlErrorKind::TooDeep, "{text:?}");
         }
         // The library breaks lines at CR, NEL, LS and PS as well as LF; so

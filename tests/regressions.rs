@@ -248,3 +248,38 @@ fn brackets_starting_a_continued_plain_scalar_line_are_text() {
         "{e:?}"
     );
 }
+
+/// Found by fuzzing (`inspect_path`, after about 1.0e6 executions): a field
+/// named `-.INF` is a YAML float, and its id came back as `-inf`, so the
+/// report printed "inf" (and `.nan` would have printed "NaN"). An id that
+/// YAML reads as a floating-point number is now refused, with a hint to
+/// quote it; integer ids (`1`, `2`) stay allowed.
+#[test]
+fn float_ids_are_refused_not_rewritten() {
+    let base = "levels:\n  g: {energy: 0 eV}\n  e: {energy: 1 eV}\ninitial: g\n\
+                couplings:\n  - {between: [g, e], dipole: 1}\nfields:\n  ID:\n    \
+                tuned: {to: [g, e], detuning: 0 MHz}\n    rabi: {on: [g, e], value: 1 MHz}\n    \
+                envelope: {shape: rectangular, start: 0 ns, duration: 100 ns}\n";
+    assert!(scheme::parse(&base.replace("ID", "probe"), "x").is_ok());
+    for id in ["-.INF", ".inf", ".nan", "1.5", "1e3"] {
+        let e = scheme::parse(&base.replace("ID", id), "x").unwrap_err();
+        let d = &e.diagnostics[0];
+        assert_eq!((d.line, d.path.as_str()), (Some(8), "fields"), "{id}: {e}");
+        assert!(d.found.contains("floating-point number"), "{id}: {e}");
+        assert!(d.expected.contains("quote"), "{id}: {e}");
+    }
+    for (level, text) in [(".nan", "initial: .nan"), ("2.0", "targets: [2.0]")] {
+        let t = format!("{base}{text}\n")
+            .replace("initial: g\n", "")
+            .replace("ID", "probe");
+        let e = scheme::parse(&t, "x").unwrap_err();
+        assert!(
+            e.to_string().contains("floating-point number"),
+            "{level}: {e}"
+        );
+    }
+    // Integer ids keep working.
+    let ints = "levels:\n  1: {energy: 0 eV}\n  2: {energy: 1 eV}\ninitial: 1\n\
+                couplings:\n  - {between: [1, 2], dipole: 1}\nwindow: {start: 0 s, end: 1 us}\n";
+    assert!(scheme::parse(ints, "x").is_ok());
+}

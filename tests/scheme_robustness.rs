@@ -207,3 +207,43 @@ fn many_problems_are_capped_and_fast() {
     assert_eq!(e.diagnostics[0].line, Some(14));
     assert!(dt < 5.0, "took {dt} s");
 }
+
+/// Differential check of the YAML flow-depth pre-check against the YAML
+/// library, on texts built from the pieces that decide where a flow
+/// collection can start (block indicators, plain and quoted scalars,
+/// comments, block scalars, document markers, every line break the library
+/// knows) around runs of 130 brackets: whatever the pre-check refuses, the
+/// library must refuse too. The fuzzer's `scheme_parse` target asserts the
+/// same (it found the two false refusals in `docs/reliability.md`); this
+/// keeps a fast version of it in the suite.
+#[test]
+fn flow_depth_pre_check_never_refuses_what_the_library_reads() {
+    let deep_open = "[".repeat(130);
+    let deep_map = "{".repeat(130);
+    let pieces: &[&str] = &[
+        "- ", "? ", ": ", ":", "-", "?", "key: ", "k:", "x", "x y", "it's", "[", "]", "{", "}",
+        ", ", ",", "\"q[\"", "'a''b['", "# c", " #", "#", "\n", "\n  ", "\n    ", "\r", "\r\n",
+        "\u{85}", "\u{2028}", "|", ">-", "&a ", "*a", "!!str ", "---", "--- ", "...", " ", "\t",
+        &deep_open, &deep_map,
+    ];
+    let mut rng = Lcg(0x5eed_f10e);
+    let (mut refused, mut agreed) = (0, 0);
+    for _ in 0..20_000 {
+        let n = 2 + rng.below(10);
+        let text: String = (0..n).map(|_| pieces[rng.below(pieces.len())]).collect();
+        if levelplan::yaml::check_flow_depth(&text).is_err() {
+            refused += 1;
+            assert!(
+                levelplan::yaml::count_nodes(&text).is_err(),
+                "the pre-check refuses a text the YAML library reads: {text:?}"
+            );
+        } else {
+            agreed += 1;
+        }
+    }
+    // Both outcomes occur, so the check is not vacuous.
+    assert!(
+        refused > 1_000 && agreed > 1_000,
+        "refused {refused}, passed {agreed}"
+    );
+}
