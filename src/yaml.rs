@@ -137,12 +137,17 @@ pub fn from_value<T: DeserializeOwned>(value: Value) -> Result<T, YamlError> {
 /// unusual files (the backend's own limit then still applies) but never
 /// refuses a file the backend would accept.
 ///
-/// A plain scalar in block context runs to the end of its line except at
-/// `": "` or `" #"`, and continues on the following lines that are indented
-/// deeper than the block collection holding it (any line at top level), up
-/// to a comment or a document marker: brackets there are text. Both rules
-/// were found by fuzzing (the `scheme_parse` target's differential check),
-/// see `docs/reliability.md`.
+/// The rules it follows, as the library reads YAML: lines break at LF, CR,
+/// NEL, LS and PS; a comment starts at `#` after a blank or right after a
+/// token other than a plain scalar; a plain scalar in block context runs to
+/// the end of its line except at `": "` or `" #"`, and continues on the
+/// following lines indented deeper than the block collection holding it
+/// (any line at top level), up to a comment or a document marker; a block
+/// scalar's body indentation comes from its first non-blank line (or an
+/// indentation digit) and the collection holding it. Brackets inside any
+/// scalar are text. Most of these rules were learnt from false refusals
+/// that fuzzing and the differential test in `tests/scheme_robustness.rs`
+/// found (`docs/reliability.md`, findings 8, 9 and 12).
 pub fn check_flow_depth(text: &str) -> Result<(), YamlError> {
     // `prev` after a quoted scalar (a quote inside a plain scalar is text).
     const QUOTED: u8 = 0;
