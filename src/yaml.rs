@@ -161,7 +161,8 @@ pub fn check_flow_depth(text: &str) -> Result<(), YamlError> {
         text.into()
     };
     let b = text.as_bytes();
-    let blank_at = |j: usize| matches!(b.get(j), None | Some(b' ' | b'\t' | b'\n' | b'\r'));
+    // (No CR is left here: line breaks were mapped to LF above.)
+    let blank_at = |j: usize| matches!(b.get(j), None | Some(b' ' | b'\t' | b'\n'));
     let mut depth = 0usize;
     // Where a node may start: a line start, or after one of these indicators.
     let opens = |p: u8| matches!(p, b'\n' | b'[' | b'{' | b',' | b':' | b'-' | b'?');
@@ -189,11 +190,11 @@ pub fn check_flow_depth(text: &str) -> Result<(), YamlError> {
                 line_start = i + 1;
                 fresh_line = true;
             }
-            b' ' | b'\t' | b'\r' => {}
+            b' ' | b'\t' => {}
             // A comment: after a blank, or (as the library reads it) right
             // after a token that is not a plain scalar, e.g. `"a"#c`, `[#c`.
             b'#' if i == 0
-                || matches!(b[i - 1], b' ' | b'\t' | b'\n' | b'\r')
+                || matches!(b[i - 1], b' ' | b'\t' | b'\n')
                 || (depth == 0 && plain.is_none() && prev != b'x')
                 || (depth > 0 && matches!(prev, b'[' | b'{' | b']' | b'}' | b',' | QUOTED)) =>
             {
@@ -297,10 +298,7 @@ pub fn check_flow_depth(text: &str) -> Result<(), YamlError> {
                                 .map_or(b.len(), |p| next + p);
                             let line = &b[next..end];
                             let lead = line.iter().take_while(|&&x| x == b' ').count();
-                            if line[lead..]
-                                .iter()
-                                .all(|&x| matches!(x, b' ' | b'\t' | b'\r'))
-                            {
+                            if line[lead..].iter().all(|&x| matches!(x, b' ' | b'\t')) {
                                 if need.is_none() {
                                     max_blank = max_blank.max(lead);
                                 }

@@ -195,7 +195,10 @@ impl<'a> Ctx<'a> {
             let text = s.as_ref().map(|x| x.text()).unwrap_or_default();
             self.push(
                 path,
-                format!("a time of at most {MAX_TIME_S:.0e} s in magnitude (2.8 hours)"),
+                format!(
+                    "a time of at most {MAX_TIME_S:.0e} s in magnitude ({:.1} hours)",
+                    MAX_TIME_S / 3600.0
+                ),
                 format!("'{}'", text.trim()),
             );
             return None;
