@@ -46,6 +46,16 @@ pub enum Error {
 }
 
 impl Error {
+    /// Whether the error is a write to a closed pipe (`levelplan ... | head`):
+    /// the reader has what it wanted, which is no failure.
+    pub fn is_broken_pipe(&self) -> bool {
+        match self {
+            Error::Output { source, .. } => source.kind() == std::io::ErrorKind::BrokenPipe,
+            Error::AtPoint { source, .. } => source.is_broken_pipe(),
+            _ => false,
+        }
+    }
+
     /// The process exit status for this error.
     pub fn exit_code(&self) -> i32 {
         match self {

@@ -270,3 +270,41 @@ fn goal_judges_targets_and_sets_the_exit_status() {
     let out = run(&["vet", d, "--goal", "1.5"]);
     assert_eq!(out.status.code(), Some(2));
 }
+
+/// Regression: `levelplan evolve ... 2>&1 | head -c 100` ended with a panic
+/// and status 101 when the reader closed the pipe. A closed stdout (and a
+/// closed stderr) now end the run quietly with status 0.
+#[test]
+fn closed_pipe_ends_quietly() {
+    use std::io::Read;
+    use std::process::Stdio;
+    for close_stderr_too in [false, true] {
+        let mut child = bin()
+            .args([
+                "evolve",
+                "level_schemes/two_level_calibration.yaml",
+                "--samples",
+                "200000",
+            ])
+            .stdout(Stdio::piped())
+            .stderr(if close_stderr_too {
+                Stdio::piped()
+            } else {
+                Stdio::inherit()
+            })
+            .spawn()
+            .unwrap();
+        let mut head = [0u8; 100];
+        child
+            .stdout
+            .as_mut()
+            .unwrap()
+            .read_exact(&mut head)
+            .unwrap();
+        drop(child.stdout.take());
+        drop(child.stderr.take());
+        let status = child.wait().unwrap();
+        assert_eq!(status.code(), Some(0), "closed pipe gave {status:?}");
+        assert!(head.starts_with(b"# levelplan"));
+    }
+}

@@ -1,4 +1,4 @@
-//! Numerical honesty: a run whose norm error exceeds `app::NORM_ERROR_LIMIT`
+//! Numerical honesty: a run whose norm error exceeds `pipeline::NORM_ERROR_LIMIT`
 //! fails with a message instead of a table; non-finite values are errors
 //! that name the stage; every report states the solver tolerances it used.
 //! Schemes are invented, illustrative numbers.
@@ -6,8 +6,8 @@
 mod cli_support;
 
 use cli_support::{bin, refused, scratch};
-use levelplan::app::{check_solution, vet_model, NORM_ERROR_LIMIT};
 use levelplan::error::Error;
+use levelplan::pipeline::{check_solution, vet_model, NORM_ERROR_LIMIT};
 use levelplan::report::Provenance;
 use levelplan::{estimate, scheme, solve};
 

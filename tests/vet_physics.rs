@@ -2,7 +2,7 @@
 //! the weak-field agreement of the first-order estimate with the exact
 //! solution, and the closed forms it must reproduce.
 
-use levelplan::app::vet_model;
+use levelplan::pipeline::vet_model;
 use levelplan::report::{Provenance, Role, VetReport};
 use levelplan::scheme::parse;
 use std::f64::consts::PI;

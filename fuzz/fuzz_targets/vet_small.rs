@@ -18,7 +18,7 @@ fuzz_target!(|data: &[u8]| {
     }
     let opts = SolveOptions { samples: 5, step_budget: 20_000 };
     let Ok(sol) = solve(&model, &opts) else { return };
-    if levelplan::app::check_solution(&sol).is_err() {
+    if levelplan::pipeline::check_solution(&sol).is_err() {
         return;
     }
     for p in sol.final_populations.iter().chain(&sol.peak_populations) {

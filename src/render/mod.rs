@@ -7,11 +7,13 @@
 
 pub mod csv;
 pub mod doc;
+pub mod evolve;
 pub mod json;
 pub mod latex;
 pub mod markdown;
 pub mod numfmt;
 pub mod scan;
+pub mod scan_plot;
 pub mod text;
 
 use crate::report::{InspectReport, VetReport};

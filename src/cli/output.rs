@@ -4,7 +4,7 @@
 //! Owns: atomic file replacement. Must not: format anything. An interrupted
 //! or failed run never leaves a partial file and never clobbers an existing one.
 
-use crate::error::Error;
+use levelplan::error::Error;
 use std::fs;
 use std::io::Write;
 use std::path::{Path, PathBuf};

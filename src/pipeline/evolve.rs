@@ -1,0 +1,102 @@
+//! `evolve`: the populations of every level at evenly spaced times over the
+//! scheme's window, with the limits that keep the output bounded.
+//!
+//! Owns: the sample-count limits and the [`Evolution`] data. Must not:
+//! spell the CSV or draw the plot (renderers do), or write files.
+
+use super::check_solution;
+use crate::error::Error;
+use crate::model::Model;
+use crate::solve::{self, MethodUsed, SolveOptions};
+
+/// Largest number of samples `evolve` accepts.
+pub const MAX_SAMPLES: usize = 1_000_000;
+
+/// Largest number of population values (samples x levels) `evolve` writes:
+/// a CSV of at most about 250 MB, held in memory once as numbers and once as
+/// text.
+pub const MAX_EVOLVE_VALUES: usize = 10_000_000;
+
+/// Largest number of points (samples x levels) `evolve --plot` draws: an SVG
+/// of about 8 MB per million points.
+pub const MAX_PLOT_POINTS: usize = 1_000_000;
+
+/// Populations against time, with the method that produced them.
+#[derive(Debug, Clone, PartialEq)]
+#[non_exhaustive]
+pub struct Evolution {
+    /// (absolute scheme time in s, population of every level in model order).
+    pub samples: Vec<(f64, Vec<f64>)>,
+    pub method: MethodUsed,
+    pub rtol: f64,
+    pub atol: f64,
+}
+
+fn bad(what: &str, message: String) -> Error {
+    Error::BadArgument {
+        what: what.into(),
+        message,
+    }
+}
+
+/// Refuse sample counts outside the limits before anything runs. `plot`:
+/// the samples will also be drawn.
+pub fn check_samples(samples: usize, n_levels: usize, plot: bool) -> Result<(), Error> {
+    if !(2..=MAX_SAMPLES).contains(&samples) {
+        return Err(bad(
+            "--samples",
+            format!("expected 2 to {MAX_SAMPLES} samples, found {samples}"),
+        ));
+    }
+    let values = samples.saturating_mul(n_levels);
+    if values > MAX_EVOLVE_VALUES {
+        return Err(bad(
+            "--samples",
+            format!(
+                "{samples} samples x {n_levels} levels = {values} population values, more than the limit of \
+                 {MAX_EVOLVE_VALUES}; use at most {} samples for this scheme",
+                MAX_EVOLVE_VALUES / n_levels.max(1)
+            ),
+        ));
+    }
+    if plot && values > MAX_PLOT_POINTS {
+        return Err(bad(
+            "--plot",
+            format!(
+                "{samples} samples x {n_levels} levels = {values} points, more than the plot limit of \
+                 {MAX_PLOT_POINTS}; use at most {} samples with --plot",
+                MAX_PLOT_POINTS / n_levels.max(1)
+            ),
+        ));
+    }
+    Ok(())
+}
+
+/// Propagate the model and record `samples` evenly spaced samples of the
+/// populations over its window, both ends included.
+pub fn evolve(model: &Model, samples: usize) -> Result<Evolution, Error> {
+    check_samples(samples, model.levels.len(), false)?;
+    let sol = solve::solve(
+        model,
+        &SolveOptions {
+            samples,
+            ..SolveOptions::default()
+        },
+    )?;
+    check_solution(&sol)?;
+    if sol
+        .samples
+        .iter()
+        .any(|(t, pops)| !t.is_finite() || pops.iter().any(|p| !p.is_finite()))
+    {
+        return Err(Error::NonFinite {
+            stage: "time samples".into(),
+        });
+    }
+    Ok(Evolution {
+        samples: sol.samples,
+        method: sol.method,
+        rtol: sol.rtol,
+        atol: sol.atol,
+    })
+}

@@ -1,0 +1,323 @@
+//! Many runs of one scheme: the points of a scan grid and the search of
+//! `tune`. The scheme text is parsed once; each point only replaces values
+//! and validates again.
+//!
+//! Owns: axes from `--vary` specs and the scheme's units, the model at a
+//! point, the preflight of the grid's corners, one point's report and row,
+//! and the whole `tune` search. Must not: read or write files, draw a
+//! progress bar, or spell rows (the CLI and `render::scan` do).
+
+use super::vet_model;
+use crate::error::Error;
+use crate::model::Model;
+use crate::report::{self, Provenance, Role, VetReport};
+use crate::scan::{
+    self as grid, bad, Axis, Grid, ScanRow, TuneFound, TuneGoal, TuneReport, VarySpec,
+};
+use crate::scheme::{self, SchemeSource};
+use crate::tune;
+
+/// A scheme read as text, with what its results must state about it.
+#[derive(Debug)]
+pub struct Study {
+    text: String,
+    source: SchemeSource,
+    /// The scheme parsed once for every grid point (built on first use).
+    prepared: std::sync::OnceLock<scheme::Prepared>,
+}
+
+impl Study {
+    /// A study of this scheme text (the file's name and hash as read).
+    pub fn new(text: String, source: SchemeSource) -> Study {
+        Study {
+            text,
+            source,
+            prepared: std::sync::OnceLock::new(),
+        }
+    }
+
+    /// The scheme text.
+    pub fn text(&self) -> &str {
+        &self.text
+    }
+
+    /// The scheme's file name as given.
+    pub fn file(&self) -> &str {
+        &self.source.path
+    }
+
+    /// What every result states about the scheme.
+    pub fn provenance(&self) -> Provenance {
+        Provenance::new(&self.source.path, &self.source.sha256)
+    }
+
+    /// Axes of the specs: each PATH must hold a number in the scheme; its
+    /// unit is the default of the range.
+    pub fn axes(
+        &self,
+        specs: &[VarySpec],
+        log: bool,
+        default_count: usize,
+    ) -> Result<Vec<Axis>, Error> {
+        let mut axes: Vec<Axis> = Vec::new();
+        for s in specs {
+            if axes.iter().any(|a| a.path == s.path) {
+                return Err(bad("--vary", format!("{} is varied twice", s.path)));
+            }
+            let (_, unit) = scheme::numeric_value_at(&self.text, &self.source.path, &s.path)
+                .map_err(|e| bad(&format!("--vary {}", s.path), e.to_string()))?;
+            axes.push(Axis::new(s, &unit, log, s.count.unwrap_or(default_count))?);
+        }
+        Ok(axes)
+    }
+
+    /// The model at a point of the grid.
+    pub fn model_at(&self, grid: &Grid, coords: &[f64]) -> Result<Model, Error> {
+        let prepared = match self.prepared.get() {
+            Some(p) => p,
+            None => {
+                let p = scheme::Prepared::new(&self.text, &self.source.path)?;
+                self.prepared.get_or_init(|| p)
+            }
+        };
+        Ok(prepared.with_overrides(&grid.overrides(coords))?)
+    }
+
+    /// Parse the scheme at the first and last grid point (every START and
+    /// END), so a wrong path, a non-numeric value or a unit of the wrong
+    /// dimension is bad input before anything runs. Returns the first model.
+    pub fn preflight(&self, grid: &Grid) -> Result<Model, Error> {
+        let mut first = None;
+        for index in [0, grid.len() - 1] {
+            let coords = grid.point(index);
+            let m = self.model_at(grid, &coords).map_err(|e| {
+                bad(
+                    "--vary",
+                    format!("the scheme does not take {}: {e}", describe(grid, &coords)),
+                )
+            })?;
+            first.get_or_insert(m);
+        }
+        first.ok_or_else(|| bad("--vary", "empty grid"))
+    }
+
+    /// One full run (exact + perturbative, no remedy checks) at a point,
+    /// errors marked with the point.
+    pub fn vet_point(
+        &self,
+        grid: &Grid,
+        tolerance: Option<f64>,
+        n_levels: usize,
+        coords: &[f64],
+    ) -> Result<VetReport, Error> {
+        let run = || -> Result<VetReport, Error> {
+            let model = self.model_at(grid, coords)?;
+            let rep = vet_model(&model, self.provenance(), tolerance)?;
+            if rep.levels.len() != n_levels {
+                return Err(bad(
+                    "--vary",
+                    "the number of levels changed across the grid",
+                ));
+            }
+            Ok(rep)
+        };
+        run().map_err(|e| Error::AtPoint {
+            at: describe(grid, coords),
+            source: Box::new(e),
+        })
+    }
+}
+
+/// "path = value unit, ..." of a point, for messages.
+fn describe(grid: &Grid, coords: &[f64]) -> String {
+    grid.overrides(coords)
+        .iter()
+        .map(|(p, v)| format!("{p} = {v}"))
+        .collect::<Vec<_>>()
+        .join(", ")
+}
+
+/// The row of a point from its report.
+pub fn row_from_report(coords: &[f64], rep: &VetReport) -> ScanRow {
+    ScanRow {
+        coords: coords.to_vec(),
+        populations: rep.levels.iter().map(|l| l.final_population).collect(),
+        max_spectator: rep.max_spectator,
+        flagged: rep.flagged,
+        estimates: rep.levels.iter().map(|l| l.estimate()).collect(),
+    }
+}
+
+/// Parse the `--vary` texts and check what needs no scheme (form, COUNT,
+/// positivity of log ranges).
+pub fn parse_specs(
+    texts: &[String],
+    count_required: bool,
+    log: bool,
+) -> Result<Vec<VarySpec>, Error> {
+    if texts.is_empty() {
+        return Err(bad(
+            "--vary",
+            "at least one --vary PATH=START..END:COUNT is needed",
+        ));
+    }
+    let specs = texts
+        .iter()
+        .map(|t| VarySpec::parse(t, count_required))
+        .collect::<Result<Vec<_>, _>>()?;
+    for s in &specs {
+        s.spacing(log)?;
+    }
+    Ok(specs)
+}
+
+/// What `tune` is asked to find.
+#[derive(Debug, Clone, PartialEq)]
+pub struct TuneRequest {
+    /// `PATH=LO..HI[:COUNT][:log]`.
+    pub vary: String,
+    pub log: bool,
+    /// Level id to maximise; None with `shortest`.
+    pub maximize: Option<String>,
+    pub shortest: bool,
+    pub goal: f64,
+    pub tolerance: Option<f64>,
+    /// Refinement tolerance, a fraction of the range.
+    pub xtol: f64,
+}
+
+impl TuneRequest {
+    /// Check everything that needs no scheme; returns the parsed spec.
+    pub fn check(&self) -> Result<VarySpec, Error> {
+        super::check_tolerance(self.tolerance)?;
+        if !(self.goal.is_finite() && self.goal > 0.0 && self.goal <= 1.0) {
+            return Err(bad(
+                "--goal",
+                format!("expected a population in (0, 1], found {}", self.goal),
+            ));
+        }
+        if !(self.xtol.is_finite() && self.xtol > 0.0 && self.xtol < 1.0) {
+            return Err(bad(
+                "--xtol",
+                format!(
+                    "expected a fraction of the range in (0, 1), found {}",
+                    self.xtol
+                ),
+            ));
+        }
+        let spec = parse_specs(std::slice::from_ref(&self.vary), false, self.log)?.remove(0);
+        if spec.count.is_some_and(|n| n < 3) {
+            return Err(bad("--vary", "tune needs at least 3 coarse points"));
+        }
+        if spec.start >= spec.end {
+            return Err(bad(
+                "--vary",
+                format!("tune needs LO < HI, found {} and {}", spec.start, spec.end),
+            ));
+        }
+        Ok(spec)
+    }
+
+    fn goal(&self, level_ids: &[String]) -> Result<TuneGoal, Error> {
+        match &self.maximize {
+            Some(id) => Ok(TuneGoal::Maximize {
+                level: level_ids.iter().position(|l| l == id).ok_or_else(|| {
+                    bad(
+                        "--maximize",
+                        format!(
+                            "no level '{id}' in the scheme (levels: {})",
+                            level_ids.join(", ")
+                        ),
+                    )
+                })?,
+            }),
+            None if self.shortest => Ok(TuneGoal::Shortest { goal: self.goal }),
+            None => Err(bad("tune", "give --maximize LEVEL or --shortest")),
+        }
+    }
+}
+
+/// Score of a point: the level's population, or 1/0 for feasibility.
+fn score(goal: &TuneGoal, rep: &VetReport) -> f64 {
+    match *goal {
+        TuneGoal::Maximize { level } => rep.levels[level].final_population,
+        TuneGoal::Shortest { goal } => {
+            let ok = rep.flagged == 0
+                && rep
+                    .levels
+                    .iter()
+                    .filter(|l| l.role == Role::Target)
+                    .all(|l| l.final_population >= goal);
+            if ok {
+                1.0
+            } else {
+                0.0
+            }
+        }
+    }
+}
+
+/// `tune`: a coarse grid (in parallel on `pool`), then golden-section
+/// search for the maximum of a level's population, or bisection for the
+/// smallest value that meets the goal. `found` is None when no value of
+/// the range meets the `shortest` condition.
+pub fn tune(
+    study: &Study,
+    req: &TuneRequest,
+    pool: &rayon::ThreadPool,
+) -> Result<TuneReport, Error> {
+    let spec = req.check()?;
+    let axes = study.axes(
+        std::slice::from_ref(&spec),
+        req.log,
+        grid::DEFAULT_TUNE_POINTS,
+    )?;
+    let grid = Grid::new(axes, false)?;
+    let model = study.preflight(&grid)?;
+    let axis = grid.axes[0].clone();
+    let level_ids: Vec<String> = model.levels.iter().map(|l| l.id.clone()).collect();
+    let n_levels = level_ids.len();
+    let goal = req.goal(&level_ids)?;
+    let at = |t: f64| -> Result<(f64, ScanRow), Error> {
+        let coords = [axis.at_fraction(t)];
+        let rep = study.vet_point(&grid, req.tolerance, n_levels, &coords)?;
+        Ok((score(&goal, &rep), row_from_report(&coords, &rep)))
+    };
+    let ts = tune::coarse(axis.count);
+    let mut coarse = Vec::with_capacity(ts.len());
+    grid::run_ordered(
+        pool,
+        0..ts.len(),
+        |i| at(ts[i]),
+        |_, r| {
+            coarse.push(r);
+            Ok(())
+        },
+    )?;
+    let refined = match goal {
+        TuneGoal::Maximize { .. } => tune::maximize(&ts, &coarse, req.xtol, at),
+        TuneGoal::Shortest { .. } => {
+            let ok: Vec<(bool, ScanRow)> =
+                coarse.iter().map(|(v, r)| (*v > 0.5, r.clone())).collect();
+            tune::smallest_feasible(&ts, &ok, req.xtol, |t| at(t).map(|(v, r)| (v > 0.5, r)))
+        }
+    }
+    .transpose()?;
+    let found = refined.as_ref().map(|r| TuneFound {
+        value: axis.at_fraction(r.t),
+        lo: axis.at_fraction(r.lo),
+        hi: axis.at_fraction(r.hi),
+        at_edge: r.at_edge,
+        row: r.data.clone(),
+    });
+    Ok(TuneReport {
+        provenance: study.provenance(),
+        axis: axis.clone(),
+        goal,
+        level_ids,
+        roles: report::roles(&model),
+        coarse_points: ts.len(),
+        refine_solves: refined.as_ref().map_or(0, |r| r.evaluations),
+        found,
+    })
+}
