@@ -79,10 +79,10 @@ impl Exporter for CsvExporter {
 
 impl Exporter for JsonExporter {
     fn vet(&self, r: &VetReport, w: &mut dyn Write) -> io::Result<()> {
-        json::write_value(&json::vet_value(r), w)
+        json::write(r, w)
     }
     fn inspect(&self, r: &InspectReport, w: &mut dyn Write) -> io::Result<()> {
-        json::write_value(&json::inspect_value(r), w)
+        json::write(r, w)
     }
 }
 
