@@ -96,3 +96,30 @@ pub fn exporter(format: Format, color: bool) -> Box<dyn Exporter> {
         Format::Json => Box::new(JsonExporter),
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::report::sample;
+
+    #[test]
+    fn every_format_writes_both_reports_and_only_text_colours() {
+        for format in [
+            Format::Text,
+            Format::Markdown,
+            Format::Latex,
+            Format::Csv,
+            Format::Json,
+        ] {
+            for color in [false, true] {
+                let e = exporter(format, color);
+                let (mut v, mut i) = (Vec::new(), Vec::new());
+                e.vet(&sample::vet_report(), &mut v).unwrap();
+                e.inspect(&sample::inspect_report(), &mut i).unwrap();
+                assert!(v.ends_with(b"\n") && i.ends_with(b"\n"), "{format:?}");
+                let escapes = v.contains(&0x1b);
+                assert_eq!(escapes, color && format == Format::Text, "{format:?}");
+            }
+        }
+    }
+}

@@ -4,7 +4,8 @@
 //! everything a renderer spells: a title with LaTeX specials, an initial
 //! level, a target, a flagged second-order spectator with its source and a
 //! remedy, a left-out drive, a known and an unknown field intensity, a field
-//! id with a comma and a quote (CSV quoting). Must not: claim physics; the
+//! id with a comma and a quote (an id the scheme would refuse, to test CSV
+//! quoting). Must not: claim physics; the
 //! numbers are invented and only need to be distinct and finite.
 
 use super::*;
