@@ -12,6 +12,8 @@ pub mod latex;
 pub mod markdown;
 pub mod numfmt;
 pub mod scan;
+#[cfg(test)]
+mod scan_tests;
 pub mod text;
 
 use crate::report::{InspectReport, VetReport};
