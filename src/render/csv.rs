@@ -122,3 +122,67 @@ pub fn inspect(r: &InspectReport, w: &mut dyn Write) -> io::Result<()> {
     }
     c.flush()
 }
+
+#[cfg(test)]
+mod tests {
+    use crate::report::sample;
+
+    fn csv_text(vet: bool) -> String {
+        let mut b = Vec::new();
+        if vet {
+            super::vet(&sample::vet_report(), &mut b).unwrap();
+        } else {
+            super::inspect(&sample::inspect_report(), &mut b).unwrap();
+        }
+        String::from_utf8(b).unwrap()
+    }
+
+    #[test]
+    fn vet_states_provenance_then_one_row_per_level() {
+        let t = csv_text(true);
+        let lines: Vec<&str> = t.lines().collect();
+        assert_eq!(
+            lines[..3],
+            [
+                "# levelplan 0.1.0; scheme demo.yaml sha256 ab12cd34ef56ab12cd34ef56",
+                "# method exact; rtol 1e-10; atol 1e-12; tolerance 1e-3; lost 5e-2; norm_error 1e-15",
+                "level,role,final_population,peak_population,estimate,estimate_order,final_over_estimate,tolerance,flagged,estimate_unreliable,main_field,main_from,main_detuning_mhz,main_rabi_mhz,main_population",
+            ]
+        );
+        assert_eq!(
+            lines[3],
+            "g,initial,5e-1,1e0,,initial,,1e-3,false,false,,,,,"
+        );
+        assert_eq!(
+            lines[5],
+            "s,spectator,2e-3,3e-3,1.5e-3,second,1.3333333333333333e0,1e-3,true,false,\"probe, \"\"A\"\"\",e,1.5e2,5e0,1.5e-3"
+        );
+        assert_eq!(lines.len(), 6);
+    }
+
+    #[test]
+    fn a_csv_reader_gets_every_field_back() {
+        let t = csv_text(true);
+        let mut r = csv::ReaderBuilder::new()
+            .comment(Some(b'#'))
+            .from_reader(t.as_bytes());
+        let rows: Vec<csv::StringRecord> = r.records().map(Result::unwrap).collect();
+        assert_eq!(rows.len(), 3);
+        assert!(rows.iter().all(|row| row.len() == 15));
+        assert_eq!(&rows[1][10], "probe, \"A\"");
+        assert_eq!(rows[1][12].parse::<f64>().unwrap(), -20.0);
+    }
+
+    #[test]
+    fn inspect_has_one_row_per_drive_in_si_named_units() {
+        let t = csv_text(false);
+        let lines: Vec<&str> = t.lines().collect();
+        assert_eq!(
+            lines[1..],
+            [
+                "field,lower,upper,transition_hz,wavelength_nm,detuning_mhz,rabi_mhz,pulse_area_rad,included",
+                "probe,g,e,3.84e14,7.807e2,-2e1,5e0,3.141592653589793e0,true",
+            ]
+        );
+    }
+}

@@ -1,216 +1,202 @@
-//! JSON rendering with the stable keys of the scheme contract (version 1).
-//! Keys are added, never renamed; output types are written here for the
-//! output, model types do not derive Serialize.
+//! JSON rendering: the reports serialised as they are, with the stable keys
+//! of the contract (docs/output-format.md). Keys are added, never renamed.
 //!
-//! Owns: the JSON spelling of the reports. Must not: compute physics; the
-//! only arithmetic is the documented unit change to MHz named in each key.
+//! Owns: the JSON layout (pretty-printed, one trailing newline). Must not:
+//! compute or convert anything; the keys, their order and their units are
+//! those of the report types (`report::json_units` holds the unit changes).
 
-use crate::estimate::Order;
-use crate::report::{InspectReport, Provenance, SolverFacts, VetReport};
-use crate::solve::MethodUsed;
-use serde_json::{json, Map, Value};
+use serde::Serialize;
 use std::io::{self, Write};
 
-const TWO_PI: f64 = 2.0 * std::f64::consts::PI;
-
-fn mhz(omega: f64) -> f64 {
-    omega / TWO_PI / 1e6
-}
-
-fn provenance(p: &Provenance) -> Value {
-    json!({
-        "tool": p.tool,
-        "version": p.version,
-        "scheme_file": p.scheme_file,
-        "scheme_sha256": p.scheme_sha256,
-    })
-}
-
-fn solver(s: &SolverFacts) -> Value {
-    json!({
-        "method": match s.method { MethodUsed::Exact => "exact", MethodUsed::Adaptive => "adaptive" },
-        "rtol": s.rtol,
-        "atol": s.atol,
-        "detuning_cutoff_mhz": mhz(s.detuning_cutoff),
-        "steps": s.steps,
-        "evaluations": s.evaluations,
-    })
-}
-
-fn order_key(o: Order) -> &'static str {
-    match o {
-        Order::Initial => "initial",
-        Order::Unreached => "none",
-        Order::First => "first",
-        Order::Second => "second",
-    }
-}
-
-/// The vet report as JSON.
-pub fn vet_value(r: &VetReport) -> Value {
-    let levels: Vec<Value> = r
-        .levels
-        .iter()
-        .map(|l| {
-            let pop_key = if l.order == Order::Second {
-                "second_order_population"
-            } else {
-                "first_order_population"
-            };
-            let sources: Vec<Value> = l
-                .sources
-                .iter()
-                .map(|s| {
-                    let mut m = Map::new();
-                    m.insert("field".into(), json!(s.field));
-                    m.insert("from".into(), json!(s.from));
-                    m.insert("detuning_mhz".into(), json!(mhz(s.detuning)));
-                    m.insert("rabi_mhz".into(), json!(mhz(s.rabi)));
-                    m.insert(pop_key.into(), json!(s.population));
-                    m.insert("in_dynamics".into(), json!(s.included));
-                    Value::Object(m)
-                })
-                .collect();
-            let mut m = Map::new();
-            m.insert("id".into(), json!(l.id));
-            m.insert("role".into(), json!(l.role.as_str()));
-            m.insert("final_population".into(), json!(l.final_population));
-            m.insert("peak_population".into(), json!(l.peak_population));
-            m.insert("first_order_population".into(), json!(l.first_order));
-            if let (Order::Second, Some(p)) = (l.order, l.second_order) {
-                m.insert("second_order_population".into(), json!(p));
-            }
-            m.insert("flagged".into(), json!(l.flagged));
-            m.insert("below_goal".into(), json!(l.below_goal));
-            m.insert("sources".into(), Value::Array(sources));
-            m.insert("label".into(), json!(l.label));
-            m.insert("estimate_order".into(), json!(order_key(l.order)));
-            m.insert("final_over_estimate".into(), json!(l.ratio));
-            m.insert("tolerance".into(), json!(l.tolerance));
-            m.insert("estimate_unreliable".into(), json!(l.unreliable));
-            if let Some(rm) = &l.remedy {
-                m.insert(
-                    "remedy".into(),
-                    json!({
-                        "field": rm.field,
-                        "present_shape": rm.present_shape,
-                        "present_length_s": rm.present_length,
-                        "gaussian_same_area_population": rm.gaussian_same_area,
-                        "blackman_same_area_population": rm.blackman_same_area,
-                        "length_for_tolerance_s": rm.length_for_tolerance,
-                        "fwhm_s": rm.fwhm,
-                        "exact_gaussian_population": rm.exact_gaussian,
-                        "exact_blackman_population": rm.exact_blackman,
-                        "exact_population_at_length": rm.exact_at_length,
-                    }),
-                );
-            }
-            Value::Object(m)
-        })
-        .collect();
-    let excluded: Vec<Value> = r
-        .excluded
-        .iter()
-        .map(|x| {
-            json!({
-                "field": x.field,
-                "lower": x.lower,
-                "upper": x.upper,
-                "detuning_mhz": mhz(x.detuning),
-                "rabi_mhz": mhz(x.rabi),
-                "first_order_population": x.population,
-                "light_shift_mhz": mhz(x.light_shift),
-            })
-        })
-        .collect();
-    let safety: Vec<Value> = r
-        .safety
-        .iter()
-        .map(|s| json!({"field": s.field, "peak_intensity_w_per_cm2": s.peak_intensity.map(|i| i * 1e-4)}))
-        .collect();
-    json!({
-        "tolerance": r.tolerance,
-        "norm_error": r.norm_error,
-        "lost_population": r.lost_population,
-        "levels": levels,
-        "flagged_count": r.flagged,
-        "goal": r.goal,
-        "targets_below_goal": r.targets_short,
-        "max_spectator_population": r.max_spectator,
-        "excluded_drives": excluded,
-        "window_s": [r.window.0, r.window.1],
-        "solver": solver(&r.solver),
-        "provenance": provenance(&r.provenance),
-        "title": r.title,
-        "laser_safety": safety,
-    })
-}
-
-/// The inspect report as JSON.
-pub fn inspect_value(r: &InspectReport) -> Value {
-    let levels: Vec<Value> = r
-        .levels
-        .iter()
-        .map(|l| {
-            json!({
-                "id": l.id,
-                "energy_hz": l.energy_hz,
-                "energy_cm": l.energy_cm,
-                "label": l.label,
-                "lifetime_s": l.lifetime,
-                "role": l.role.as_str(),
-                "initial_population": l.initial_population,
-                "tolerance": l.tolerance,
-            })
-        })
-        .collect();
-    let drives: Vec<Value> = r
-        .drives
-        .iter()
-        .map(|d| {
-            json!({
-                "field": d.field,
-                "lower": d.lower,
-                "upper": d.upper,
-                "transition_hz": d.transition_hz,
-                "detuning_mhz": d.detuning_hz / 1e6,
-                "rabi_mhz": d.rabi_hz / 1e6,
-                "included": d.included,
-                "wavelength_nm": d.wavelength.map(|w| w * 1e9),
-                "pulse_area_rad": d.area,
-                "relative_dipole": d.relative_dipole,
-            })
-        })
-        .collect();
-    let fields: Vec<Value> = r
-        .fields
-        .iter()
-        .map(|f| {
-            json!({
-                "id": f.id,
-                "frequency_hz": f.frequency_hz,
-                "wavelength_nm": f.wavelength * 1e9,
-                "envelope": f.shape,
-                "length_s": f.length,
-                "peak_intensity_w_per_cm2": f.peak_intensity.map(|i| i * 1e-4),
-                "chirp_hz_per_s": f.chirp_hz_per_s,
-                "rwa": f.rwa,
-            })
-        })
-        .collect();
-    json!({
-        "levels": levels,
-        "drives": drives,
-        "fields": fields,
-        "window_s": [r.window.0, r.window.1],
-        "tolerance": r.tolerance,
-        "detuning_cutoff_mhz": mhz(r.detuning_cutoff),
-        "provenance": provenance(&r.provenance),
-        "title": r.title,
-    })
-}
-
-pub fn write_value(v: &Value, w: &mut dyn Write) -> io::Result<()> {
-    serde_json::to_writer_pretty(&mut *w, v).map_err(io::Error::other)?;
+/// Write a report as pretty-printed JSON followed by a newline.
+pub fn write<T: Serialize + ?Sized>(report: &T, w: &mut dyn Write) -> io::Result<()> {
+    serde_json::to_writer_pretty(&mut *w, report).map_err(io::Error::other)?;
     writeln!(w)
+}
+
+#[cfg(test)]
+mod tests {
+    use crate::report::sample;
+    use serde_json::Value;
+
+    fn json<T: serde::Serialize>(r: &T) -> (String, Value) {
+        let mut b = Vec::new();
+        super::write(r, &mut b).unwrap();
+        let t = String::from_utf8(b).unwrap();
+        let v = serde_json::from_str(&t).unwrap();
+        (t, v)
+    }
+
+    fn keys(v: &Value) -> Vec<&str> {
+        v.as_object().unwrap().keys().map(String::as_str).collect()
+    }
+
+    #[test]
+    fn vet_keys_in_contract_order_with_units_in_their_names() {
+        let (t, v) = json(&sample::vet_report());
+        assert!(t.starts_with("{\n  \"tolerance\": 0.001,\n  \"norm_error\": 1e-15,\n"));
+        assert!(t.ends_with("\n}\n"), "one newline after the object");
+        assert_eq!(
+            keys(&v),
+            [
+                "tolerance",
+                "norm_error",
+                "lost_population",
+                "levels",
+                "flagged_count",
+                "goal",
+                "targets_below_goal",
+                "max_spectator_population",
+                "excluded_drives",
+                "window_s",
+                "solver",
+                "provenance",
+                "title",
+                "laser_safety",
+            ]
+        );
+        assert_eq!(v["window_s"], serde_json::json!([0.0, 2e-7]));
+        assert_eq!(v["solver"]["method"], "exact");
+        assert_eq!(v["solver"]["detuning_cutoff_mhz"], 1e6);
+        assert_eq!(v["provenance"]["scheme_sha256"], "ab12cd34ef56ab12cd34ef56");
+        assert_eq!(v["goal"], Value::Null);
+        let x = &v["excluded_drives"][0];
+        assert_eq!(x["detuning_mhz"], 2e6);
+        assert!((x["light_shift_mhz"].as_f64().unwrap() - 0.125e-6).abs() < 1e-18);
+        assert_eq!(x["first_order_population"], 1e-14);
+        // 1e4 W/m^2 is 1 W/cm^2; an unknown intensity is null.
+        assert_eq!(v["laser_safety"][0]["peak_intensity_w_per_cm2"], 1.0);
+        assert_eq!(
+            v["laser_safety"][1]["peak_intensity_w_per_cm2"],
+            Value::Null
+        );
+    }
+
+    #[test]
+    fn level_keys_and_the_population_key_of_each_source() {
+        let (_, v) = json(&sample::vet_report());
+        let [g, e, s] = [0, 1, 2].map(|k| &v["levels"][k]);
+        assert_eq!(
+            keys(g),
+            [
+                "id",
+                "role",
+                "final_population",
+                "peak_population",
+                "first_order_population",
+                "flagged",
+                "below_goal",
+                "sources",
+                "label",
+                "estimate_order",
+                "final_over_estimate",
+                "tolerance",
+                "estimate_unreliable",
+            ],
+            "no second-order key and no remedy where there is none"
+        );
+        assert_eq!(g["first_order_population"], Value::Null);
+        assert_eq!(g["estimate_order"], "initial");
+        assert_eq!(e["sources"][0]["first_order_population"], 0.5);
+        assert_eq!(e["sources"][0]["detuning_mhz"], -20.0);
+        assert_eq!(e["estimate_order"], "first");
+        let src = &s["sources"][0];
+        assert_eq!(
+            keys(src),
+            [
+                "field",
+                "from",
+                "detuning_mhz",
+                "rabi_mhz",
+                "second_order_population",
+                "in_dynamics"
+            ]
+        );
+        assert_eq!(s["second_order_population"], 1.5e-3);
+        assert_eq!(s["first_order_population"], 0.0);
+        assert_eq!(s["estimate_order"], "second");
+        assert_eq!(
+            keys(&s["remedy"]),
+            [
+                "field",
+                "present_shape",
+                "present_length_s",
+                "gaussian_same_area_population",
+                "blackman_same_area_population",
+                "length_for_tolerance_s",
+                "fwhm_s",
+                "exact_gaussian_population",
+                "exact_blackman_population",
+                "exact_population_at_length",
+            ]
+        );
+        assert_eq!(s["remedy"]["exact_blackman_population"], Value::Null);
+    }
+
+    #[test]
+    fn inspect_keys_and_units() {
+        let (_, v) = json(&sample::inspect_report());
+        assert_eq!(
+            keys(&v),
+            [
+                "levels",
+                "drives",
+                "fields",
+                "window_s",
+                "tolerance",
+                "detuning_cutoff_mhz",
+                "provenance",
+                "title",
+            ]
+        );
+        assert_eq!(
+            keys(&v["levels"][0]),
+            [
+                "id",
+                "energy_hz",
+                "energy_cm",
+                "label",
+                "lifetime_s",
+                "role",
+                "initial_population",
+                "tolerance",
+            ]
+        );
+        let d = &v["drives"][0];
+        assert_eq!(
+            keys(d),
+            [
+                "field",
+                "lower",
+                "upper",
+                "transition_hz",
+                "detuning_mhz",
+                "rabi_mhz",
+                "included",
+                "wavelength_nm",
+                "pulse_area_rad",
+                "relative_dipole",
+            ]
+        );
+        assert_eq!(d["detuning_mhz"], -20.0);
+        assert_eq!(d["rabi_mhz"], 5.0);
+        assert!((d["wavelength_nm"].as_f64().unwrap() - 780.7).abs() < 1e-9);
+        let f = &v["fields"][0];
+        assert_eq!(
+            keys(f),
+            [
+                "id",
+                "frequency_hz",
+                "wavelength_nm",
+                "envelope",
+                "length_s",
+                "peak_intensity_w_per_cm2",
+                "chirp_hz_per_s",
+                "rwa",
+            ]
+        );
+        assert_eq!(f["peak_intensity_w_per_cm2"], 1.0);
+        assert_eq!(v["levels"][1]["lifetime_s"], 26e-9);
+        assert_eq!(v["title"], Value::Null);
+    }
 }

@@ -62,3 +62,69 @@ pub fn write(doc: &Doc, w: &mut dyn Write) -> io::Result<()> {
     }
     Ok(())
 }
+
+#[cfg(test)]
+mod tests {
+    use crate::render::doc::{inspect_doc, vet_doc, SAFETY_TEXT};
+    use crate::report::sample;
+
+    fn vet_latex() -> String {
+        let mut b = Vec::new();
+        super::write(&vet_doc(&sample::vet_report()), &mut b).unwrap();
+        String::from_utf8(b).unwrap()
+    }
+
+    #[test]
+    fn title_and_notes_are_escaped() {
+        let t = vet_latex();
+        let lines: Vec<&str> = t.lines().collect();
+        assert_eq!(
+            lines[0],
+            "% Leakage report: Test \\& scheme\\_1 at 50\\% \\#2 -- requires \\usepackage{booktabs}"
+        );
+        assert!(lines.contains(&"field probe, \"A\": peak intensity 1.000 W/cm\\^{}2\\par"));
+        assert!(lines.contains(&"\\paragraph{Caution}"));
+        let caution = lines
+            .iter()
+            .position(|l| *l == "\\paragraph{Caution}")
+            .unwrap();
+        assert_eq!(lines[caution + 3], format!("{SAFETY_TEXT}\\par"));
+    }
+
+    #[test]
+    fn tables_are_booktabs_with_bold_leaks_and_typeset_powers() {
+        let t = vet_latex();
+        assert_eq!(t.matches("\\begin{table}[htbp]").count(), 3);
+        assert_eq!(t.matches("\\end{table}").count(), 3);
+        assert_eq!(
+            t.matches("\\toprule").count(),
+            t.matches("\\bottomrule").count()
+        );
+        assert!(t.contains(
+            "  \\caption{Populations at the end of the window}\n  \\begin{tabular}{llrrrlrrl}\n    \\toprule\n    level & role & final & peak & estimate & order & final/est & tolerance & status \\\\\n    \\midrule\n"
+        ));
+        assert!(t.contains(
+            "    s & spectator & \\textbf{0.0020} & 0.0030 & 0.0015 & 2nd & 1.33 & 0.0010 & \\textbf{LEAK} \\\\\n"
+        ));
+        assert!(t.contains(
+            "    kick & g - s & +2.000~THz & 1.000~MHz & $1.00\\times10^{-14}$ & +0.1250~Hz \\\\\n"
+        ));
+        // An absent number is an en dash, not a hyphen.
+        assert!(t.contains("    g & initial & 0.5000 & 1.0000 & -- &"));
+    }
+
+    #[test]
+    fn inspect_typesets_units_in_math_mode() {
+        let mut b = Vec::new();
+        super::write(&inspect_doc(&sample::inspect_report()), &mut b).unwrap();
+        let t = String::from_utf8(b).unwrap();
+        assert!(
+            t.contains(
+                "    e &  & 12808.8000~cm$^{-1}$ & 384.0~THz & 26.00~ns & target & -- \\\\\n"
+            ),
+            "{t}"
+        );
+        assert!(t.contains(" & 1.000~W/cm$^2$ & "), "{t}");
+        assert!(t.ends_with(&format!("{SAFETY_TEXT}\\par\n")), "{t}");
+    }
+}

@@ -14,6 +14,8 @@ pub mod markdown;
 pub mod numfmt;
 pub mod scan;
 pub mod scan_plot;
+#[cfg(test)]
+mod scan_tests;
 pub mod text;
 
 use crate::report::{InspectReport, VetReport};
@@ -81,10 +83,10 @@ impl Exporter for CsvExporter {
 
 impl Exporter for JsonExporter {
     fn vet(&self, r: &VetReport, w: &mut dyn Write) -> io::Result<()> {
-        json::write_value(&json::vet_value(r), w)
+        json::write(r, w)
     }
     fn inspect(&self, r: &InspectReport, w: &mut dyn Write) -> io::Result<()> {
-        json::write_value(&json::inspect_value(r), w)
+        json::write(r, w)
     }
 }
 
@@ -96,5 +98,32 @@ pub fn exporter(format: Format, color: bool) -> Box<dyn Exporter> {
         Format::Latex => Box::new(LatexExporter),
         Format::Csv => Box::new(CsvExporter),
         Format::Json => Box::new(JsonExporter),
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::report::sample;
+
+    #[test]
+    fn every_format_writes_both_reports_and_only_text_colours() {
+        for format in [
+            Format::Text,
+            Format::Markdown,
+            Format::Latex,
+            Format::Csv,
+            Format::Json,
+        ] {
+            for color in [false, true] {
+                let e = exporter(format, color);
+                let (mut v, mut i) = (Vec::new(), Vec::new());
+                e.vet(&sample::vet_report(), &mut v).unwrap();
+                e.inspect(&sample::inspect_report(), &mut i).unwrap();
+                assert!(v.ends_with(b"\n") && i.ends_with(b"\n"), "{format:?}");
+                let escapes = v.contains(&0x1b);
+                assert_eq!(escapes, color && format == Format::Text, "{format:?}");
+            }
+        }
     }
 }

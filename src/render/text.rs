@@ -71,3 +71,86 @@ pub fn write(doc: &Doc, color: bool, w: &mut dyn Write) -> io::Result<()> {
     }
     Ok(())
 }
+
+#[cfg(test)]
+mod tests {
+    use crate::render::doc::{inspect_doc, vet_doc, SAFETY_TEXT};
+    use crate::report::sample;
+
+    fn vet_text(color: bool) -> String {
+        let mut b = Vec::new();
+        super::write(&vet_doc(&sample::vet_report()), color, &mut b).unwrap();
+        String::from_utf8(b).unwrap()
+    }
+
+    #[test]
+    fn vet_table_is_aligned_and_flags_read_without_colour() {
+        let t = vet_text(false);
+        let lines: Vec<&str> = t.lines().collect();
+        assert_eq!(lines[0], "Leakage report: Test & scheme_1 at 50% #2");
+        assert!(lines.contains(&"  scheme               demo.yaml (sha256 ab12cd34ef56)"));
+        let head = lines
+            .iter()
+            .position(|l| *l == "Populations at the end of the window")
+            .unwrap();
+        assert_eq!(
+            &lines[head + 1..head + 6],
+            [
+                "  level  role        final    peak  estimate  order  final/est  tolerance  status",
+                "  -----  ---------  ------  ------  --------  -----  ---------  ---------  ------",
+                "  g      initial    0.5000  1.0000         -  -              -          -",
+                "  e      target     0.4500  0.6000    0.5000  1st        0.900          -",
+                "  s      spectator  0.0020  0.0030    0.0015  2nd         1.33     0.0010  LEAK",
+            ]
+        );
+        assert!(
+            lines.contains(&"  s      probe, \"A\"  e     +150.0 MHz   5.000 MHz    0.0015  yes")
+        );
+        assert!(!t.contains('\x1b'), "no escape codes without colour");
+    }
+
+    #[test]
+    fn vet_ends_with_the_laser_safety_caution() {
+        let t = vet_text(false);
+        let caution = t.split("\nCaution\n").nth(1).expect("a Caution section");
+        let lines: Vec<&str> = caution.lines().collect();
+        assert_eq!(
+            lines[0],
+            "  field probe, \"A\": peak intensity 1.000 W/cm^2"
+        );
+        assert_eq!(
+            lines[1],
+            "  field kick: intensity not known (set by Rabi frequency or area on a relative dipole)"
+        );
+        assert_eq!(lines[2], format!("  {SAFETY_TEXT}"));
+    }
+
+    #[test]
+    fn colour_marks_the_leak_only_when_asked() {
+        let t = vet_text(true);
+        let row = t
+            .lines()
+            .find(|l| l.starts_with("  s      spectator"))
+            .unwrap();
+        assert!(row.contains("\x1b[1;31m0.0020\x1b[0m"), "{row:?}");
+        assert!(row.ends_with("\x1b[1;31mLEAK  \x1b[0m"), "{row:?}");
+    }
+
+    #[test]
+    fn inspect_lists_levels_and_drives() {
+        let mut b = Vec::new();
+        super::write(&inspect_doc(&sample::inspect_report()), false, &mut b).unwrap();
+        let t = String::from_utf8(b).unwrap();
+        let lines: Vec<&str> = t.lines().collect();
+        assert_eq!(lines[0], "Scheme");
+        assert!(lines
+            .contains(&"  e              12808.8000 cm^-1  384.0 THz  26.00 ns  target         -"));
+        assert!(lines.contains(
+            &"  probe  g - e       384.0 THz  780.7000 nm  -20.00 MHz   5.000 MHz  1.000 pi  yes"
+        ));
+        assert_eq!(
+            lines.last().copied(),
+            Some(format!("  {SAFETY_TEXT}").as_str())
+        );
+    }
+}

@@ -1,22 +1,21 @@
-//! The reports: plain data assembled from the model, the exact solution and
-//! the perturbative estimate. Every number a renderer shows is computed here.
+//! The vet report: every level's final and peak population beside its
+//! perturbative estimate, the flags, reliability marks, the drives that feed
+//! each level, remedies for leaks and the drives left out by the cutoff.
 //!
-//! Owns: [`VetReport`], [`InspectReport`], roles, flags, reliability marks,
-//! remedies, provenance and the laser-safety notes. Must not: format numbers,
-//! choose units for display, print, or run a propagator (it receives the
-//! [`Solution`] and the [`Estimate`] already made).
+//! Owns: [`VetReport`] and its rows, [`vet`], [`judge_targets`], the
+//! reliability rule. Must not: run a propagator (the exact checks of the
+//! remedies are filled in by the app), format numbers.
 
+use super::json_units;
+use super::safety::{safety_notes, SafetyNote};
+use super::{roles, Provenance, Role, SolverFacts};
 use crate::estimate::{self, Estimate, EstimateError, Order};
-use crate::model::{Dipole, Model};
-use crate::solve::{MethodUsed, Solution};
-use crate::units::C;
+use crate::model::Model;
+use crate::solve::Solution;
+use serde::ser::{SerializeStruct, Serializer};
+use serde::Serialize;
 
-/// Peak intensity (W/m^2) at and above which a field gets a laser-safety note:
-/// 25 W/m^2 = 2.5 mW/cm^2, the order of the ocular maximum permissible
-/// exposure for visible CW light over the 0.25 s aversion time in the laser
-/// safety standards (IEC 60825-1, ANSI Z136.1; from memory). The note is a
-/// reminder, not a hazard classification.
-pub const SAFETY_INTENSITY: f64 = 25.0;
+// Struct fields are in the order of the JSON keys (serde_json keeps it).
 
 /// The estimate is marked unreliable above this population.
 pub const UNRELIABLE_ABOVE: f64 = 0.1;
@@ -26,58 +25,9 @@ pub const UNRELIABLE_FACTOR: f64 = 2.0;
 /// reliability (both negligible).
 pub const NEGLIGIBLE: f64 = 1e-12;
 
-/// How a result was produced.
-#[derive(Debug, Clone, PartialEq)]
-pub struct Provenance {
-    pub tool: String,
-    pub version: String,
-    pub scheme_file: String,
-    pub scheme_sha256: String,
-}
-
-impl Provenance {
-    pub fn new(scheme_file: &str, scheme_sha256: &str) -> Self {
-        Provenance {
-            tool: env!("CARGO_PKG_NAME").to_string(),
-            version: env!("CARGO_PKG_VERSION").to_string(),
-            scheme_file: scheme_file.to_string(),
-            scheme_sha256: scheme_sha256.to_string(),
-        }
-    }
-}
-
-/// Solver facts every result states.
-#[derive(Debug, Clone, PartialEq)]
-pub struct SolverFacts {
-    pub method: MethodUsed,
-    pub rtol: f64,
-    pub atol: f64,
-    /// rad/s
-    pub detuning_cutoff: f64,
-    pub steps: u64,
-    pub evaluations: u64,
-}
-
-/// Role of a level in the scheme.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
-pub enum Role {
-    Initial,
-    Target,
-    Spectator,
-}
-
-impl Role {
-    pub fn as_str(&self) -> &'static str {
-        match self {
-            Role::Initial => "initial",
-            Role::Target => "target",
-            Role::Spectator => "spectator",
-        }
-    }
-}
-
 /// One drive feeding a level, as the report shows it.
 #[derive(Debug, Clone, PartialEq)]
+#[non_exhaustive]
 pub struct SourceRow {
     pub field: String,
     pub from: String,
@@ -85,52 +35,97 @@ pub struct SourceRow {
     pub detuning: f64,
     /// rad/s
     pub rabi: f64,
+    /// This drive's part of the level's estimate.
     pub population: f64,
+    /// The order of perturbation theory `population` comes from: the
+    /// estimate order of the level it feeds.
+    pub order: Order,
     /// Whether this drive is in the dynamics (false: beyond the cutoff).
     pub included: bool,
 }
 
+/// Written by hand because the population's key depends on a value:
+/// `second_order_population` for a second-order source,
+/// `first_order_population` otherwise (derive only knows fixed names).
+/// `order` itself is not a key (the level states it as `estimate_order`).
+impl Serialize for SourceRow {
+    fn serialize<S: Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
+        let population_key = match self.order {
+            Order::Second => "second_order_population",
+            _ => "first_order_population",
+        };
+        let mut m = s.serialize_struct("SourceRow", 6)?;
+        m.serialize_field("field", &self.field)?;
+        m.serialize_field("from", &self.from)?;
+        m.serialize_field("detuning_mhz", &json_units::Mhz(self.detuning))?;
+        m.serialize_field("rabi_mhz", &json_units::Mhz(self.rabi))?;
+        m.serialize_field(population_key, &self.population)?;
+        m.serialize_field("in_dynamics", &self.included)?;
+        m.end()
+    }
+}
+
 /// A computed remedy for a flagged leak.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, Serialize)]
+#[non_exhaustive]
 pub struct RemedyRow {
     pub field: String,
     pub present_shape: String,
-    pub gaussian_same_area: f64,
-    pub blackman_same_area: f64,
-    /// s
-    pub length_for_tolerance: Option<f64>,
     /// s, the present length parameter of that pulse, same definition as
     /// `length_for_tolerance` (duration, Gaussian intensity FWHM, sech tau,
     /// sample span)
+    #[serde(rename = "present_length_s")]
     pub present_length: f64,
+    #[serde(rename = "gaussian_same_area_population")]
+    pub gaussian_same_area: f64,
+    #[serde(rename = "blackman_same_area_population")]
+    pub blackman_same_area: f64,
+    /// s
+    #[serde(rename = "length_for_tolerance_s")]
+    pub length_for_tolerance: Option<f64>,
     /// s, the intensity FWHM matched by the Gaussian and Blackman replacements
+    #[serde(rename = "fwhm_s")]
     pub fwhm: f64,
     /// The same three remedies checked by exact propagation (filled by the
     /// app, which runs the propagator; None where not checked).
+    #[serde(rename = "exact_gaussian_population")]
     pub exact_gaussian: Option<f64>,
+    #[serde(rename = "exact_blackman_population")]
     pub exact_blackman: Option<f64>,
+    #[serde(rename = "exact_population_at_length")]
     pub exact_at_length: Option<f64>,
 }
 
 /// One level's line of the vet report.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, Serialize)]
+#[non_exhaustive]
 pub struct LevelRow {
     pub id: String,
-    pub label: Option<String>,
     pub role: Role,
     pub final_population: f64,
     pub peak_population: f64,
-    pub order: Order,
+    #[serde(rename = "first_order_population")]
     pub first_order: Option<f64>,
+    /// `Some` exactly when `order` is [`Order::Second`]; no key otherwise.
+    #[serde(
+        rename = "second_order_population",
+        skip_serializing_if = "Option::is_none"
+    )]
     pub second_order: Option<f64>,
-    /// final / estimate, where both are non-negligible.
-    pub ratio: Option<f64>,
-    pub tolerance: f64,
     pub flagged: bool,
     /// A target below the goal asked for (`vet --goal`).
     pub below_goal: bool,
-    pub unreliable: bool,
     pub sources: Vec<SourceRow>,
+    pub label: Option<String>,
+    #[serde(rename = "estimate_order", serialize_with = "json_units::order")]
+    pub order: Order,
+    /// final / estimate, where both are non-negligible.
+    #[serde(rename = "final_over_estimate")]
+    pub ratio: Option<f64>,
+    pub tolerance: f64,
+    #[serde(rename = "estimate_unreliable")]
+    pub unreliable: bool,
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub remedy: Option<RemedyRow>,
 }
 
@@ -145,46 +140,52 @@ impl LevelRow {
 }
 
 /// A drive left out by the detuning cutoff.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, Serialize)]
+#[non_exhaustive]
 pub struct ExcludedRow {
     pub field: String,
     pub lower: String,
     pub upper: String,
+    /// rad/s
+    #[serde(rename = "detuning_mhz", serialize_with = "json_units::mhz")]
     pub detuning: f64,
+    /// rad/s
+    #[serde(rename = "rabi_mhz", serialize_with = "json_units::mhz")]
     pub rabi: f64,
+    #[serde(rename = "first_order_population")]
     pub population: f64,
     /// rad/s
+    #[serde(rename = "light_shift_mhz", serialize_with = "json_units::mhz")]
     pub light_shift: f64,
 }
 
-/// A laser-safety note about one field.
-#[derive(Debug, Clone, PartialEq)]
-pub struct SafetyNote {
-    pub field: String,
-    /// W/m^2; None when the scheme sets the field by Rabi frequency on a
-    /// relative dipole, so its intensity is unknown.
-    pub peak_intensity: Option<f64>,
-}
-
 /// The vet report.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, Serialize)]
+#[non_exhaustive]
 pub struct VetReport {
-    pub title: Option<String>,
-    pub provenance: Provenance,
-    pub solver: SolverFacts,
     pub tolerance: f64,
-    pub window: (f64, f64),
-    pub levels: Vec<LevelRow>,
-    pub excluded: Vec<ExcludedRow>,
-    pub lost_population: f64,
     pub norm_error: f64,
+    pub lost_population: f64,
+    pub levels: Vec<LevelRow>,
+    #[serde(rename = "flagged_count")]
     pub flagged: usize,
     /// Target goal asked for (`vet --goal`), if any.
     pub goal: Option<f64>,
     /// Targets whose final population is below the goal.
+    #[serde(rename = "targets_below_goal")]
     pub targets_short: usize,
     /// Largest final population among spectators (0 if none).
+    #[serde(rename = "max_spectator_population")]
     pub max_spectator: f64,
+    #[serde(rename = "excluded_drives")]
+    pub excluded: Vec<ExcludedRow>,
+    /// Start and end of the time window (s).
+    #[serde(rename = "window_s")]
+    pub window: (f64, f64),
+    pub solver: SolverFacts,
+    pub provenance: Provenance,
+    pub title: Option<String>,
+    #[serde(rename = "laser_safety")]
     pub safety: Vec<SafetyNote>,
 }
 
@@ -230,22 +231,7 @@ impl VetReport {
     }
 }
 
-/// Role of every level.
-pub fn roles(model: &Model) -> Vec<Role> {
-    (0..model.levels.len())
-        .map(|k| {
-            if model.initial[k] > 0.0 {
-                Role::Initial
-            } else if model.targets.contains(&k) {
-                Role::Target
-            } else {
-                Role::Spectator
-            }
-        })
-        .collect()
-}
-
-fn source_rows(model: &Model, sources: &[estimate::Source]) -> Vec<SourceRow> {
+fn source_rows(model: &Model, order: Order, sources: &[estimate::Source]) -> Vec<SourceRow> {
     sources
         .iter()
         .map(|s| {
@@ -256,6 +242,7 @@ fn source_rows(model: &Model, sources: &[estimate::Source]) -> Vec<SourceRow> {
                 detuning: s.detuning,
                 rabi: s.rabi,
                 population: s.population,
+                order,
                 included: model.drive_included(d),
             }
         })
@@ -292,24 +279,6 @@ fn remedy_row(model: &Model, r: &estimate::Remedy) -> RemedyRow {
         exact_gaussian: None,
         exact_blackman: None,
         exact_at_length: None,
-    }
-}
-
-/// The duration measure of an envelope used in remedies: the duration of
-/// finite pulses, the intensity FWHM of Gaussian and sech pulses, the sample span.
-pub fn envelope_length(env: &crate::model::Envelope) -> f64 {
-    use crate::model::Envelope::*;
-    match env {
-        Rectangular { duration, .. } | Sin2 { duration, .. } | Blackman { duration, .. } => {
-            *duration
-        }
-        Gaussian { sigma, .. } => 2.0 * (2.0f64.ln()).sqrt() * sigma,
-        // sech^2(x/tau) = 1/2 at x = tau acosh(sqrt 2)
-        Sech { tau, .. } => 2.0 * tau * (2.0f64.sqrt()).acosh(),
-        Samples { times, .. } => match (times.first(), times.last()) {
-            (Some(a), Some(b)) => b - a,
-            _ => 0.0,
-        },
     }
 }
 
@@ -366,7 +335,7 @@ pub fn vet(
             flagged: is_flagged,
             below_goal: false,
             unreliable: role != Role::Initial && unreliable(shown, fin),
-            sources: source_rows(model, &est.sources),
+            sources: source_rows(model, est.order, &est.sources),
             remedy,
         });
     }
@@ -422,161 +391,5 @@ pub fn judge_targets(report: &mut VetReport, goal: f64) {
         if l.below_goal {
             report.targets_short += 1;
         }
-    }
-}
-
-/// Fields whose peak intensity reaches [`SAFETY_INTENSITY`] or is unknown.
-pub fn safety_notes(model: &Model) -> Vec<SafetyNote> {
-    model
-        .fields
-        .iter()
-        .filter(|f| f.peak_intensity.is_none_or(|i| i >= SAFETY_INTENSITY))
-        .map(|f| SafetyNote {
-            field: f.id.clone(),
-            peak_intensity: f.peak_intensity,
-        })
-        .collect()
-}
-
-/// One level of the inspect report.
-#[derive(Debug, Clone, PartialEq)]
-pub struct InspectLevel {
-    pub id: String,
-    pub label: Option<String>,
-    /// Energy / h, Hz (cyclic).
-    pub energy_hz: f64,
-    /// Energy in cm^-1.
-    pub energy_cm: f64,
-    /// Lifetime (s), None for a stable level.
-    pub lifetime: Option<f64>,
-    pub role: Role,
-    pub initial_population: f64,
-    pub tolerance: f64,
-}
-
-/// One drive of the inspect report.
-#[derive(Debug, Clone, PartialEq)]
-pub struct InspectDrive {
-    pub field: String,
-    pub lower: String,
-    pub upper: String,
-    /// Transition frequency (Hz, cyclic).
-    pub transition_hz: f64,
-    /// Vacuum wavelength of the transition (m); None for a zero splitting.
-    pub wavelength: Option<f64>,
-    /// Detuning / 2 pi (Hz).
-    pub detuning_hz: f64,
-    /// Peak Rabi frequency / 2 pi (Hz).
-    pub rabi_hz: f64,
-    /// Pulse area (rad).
-    pub area: f64,
-    pub included: bool,
-    /// Whether the coupling's dipole is a relative (bare) number.
-    pub relative_dipole: bool,
-}
-
-/// One field of the inspect report.
-#[derive(Debug, Clone, PartialEq)]
-pub struct InspectField {
-    pub id: String,
-    /// Carrier frequency (Hz, cyclic).
-    pub frequency_hz: f64,
-    /// Vacuum wavelength (m).
-    pub wavelength: f64,
-    pub shape: String,
-    /// Duration measure (s): see [`envelope_length`].
-    pub length: f64,
-    /// W/m^2
-    pub peak_intensity: Option<f64>,
-    /// Chirp beta (Hz/s).
-    pub chirp_hz_per_s: f64,
-    pub rwa: bool,
-}
-
-/// The inspect report: the planner's dry run, no dynamics.
-#[derive(Debug, Clone, PartialEq)]
-pub struct InspectReport {
-    pub title: Option<String>,
-    pub provenance: Provenance,
-    pub levels: Vec<InspectLevel>,
-    pub drives: Vec<InspectDrive>,
-    pub fields: Vec<InspectField>,
-    pub window: (f64, f64),
-    pub tolerance: f64,
-    /// rad/s
-    pub detuning_cutoff: f64,
-    pub safety: Vec<SafetyNote>,
-}
-
-const TWO_PI: f64 = 2.0 * std::f64::consts::PI;
-
-/// Assemble the inspect report.
-pub fn inspect(model: &Model, provenance: Provenance) -> InspectReport {
-    let roles = roles(model);
-    let levels = model
-        .levels
-        .iter()
-        .enumerate()
-        .map(|(k, l)| {
-            let hz = l.omega / TWO_PI;
-            InspectLevel {
-                id: l.id.clone(),
-                label: l.label.clone(),
-                energy_hz: hz,
-                energy_cm: hz / C / 100.0,
-                lifetime: (l.gamma > 0.0).then(|| 1.0 / l.gamma),
-                role: roles[k],
-                initial_population: model.initial[k],
-                tolerance: model.tolerance_of(k),
-            }
-        })
-        .collect();
-    let drives = model
-        .drives
-        .iter()
-        .map(|d| {
-            let c = &model.couplings[d.coupling];
-            let hz = model.transition_omega(d.coupling) / TWO_PI;
-            InspectDrive {
-                field: model.fields[d.field].id.clone(),
-                lower: model.levels[c.lower].id.clone(),
-                upper: model.levels[c.upper].id.clone(),
-                transition_hz: hz,
-                wavelength: (hz > 0.0).then(|| C / hz),
-                detuning_hz: model.detuning(d) / TWO_PI,
-                rabi_hz: d.rabi / TWO_PI,
-                area: model.pulse_area(d),
-                included: model.drive_included(d),
-                relative_dipole: matches!(c.dipole, Dipole::Relative(_)),
-            }
-        })
-        .collect();
-    let fields = model
-        .fields
-        .iter()
-        .map(|f| {
-            let hz = f.omega / TWO_PI;
-            InspectField {
-                id: f.id.clone(),
-                frequency_hz: hz,
-                wavelength: C / hz,
-                shape: f.envelope.shape_name().to_string(),
-                length: envelope_length(&f.envelope),
-                peak_intensity: f.peak_intensity,
-                chirp_hz_per_s: f.chirp / TWO_PI,
-                rwa: f.rwa,
-            }
-        })
-        .collect();
-    InspectReport {
-        title: model.title.clone(),
-        provenance,
-        levels,
-        drives,
-        fields,
-        window: (model.window.start, model.window.end),
-        tolerance: model.tolerance,
-        detuning_cutoff: model.solver.detuning_cutoff,
-        safety: safety_notes(model),
     }
 }
