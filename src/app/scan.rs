@@ -26,7 +26,6 @@ use crate::scan::{
 };
 use crate::scheme;
 use crate::tune;
-use sha2::{Digest, Sha256};
 use std::fs;
 use std::io::{BufWriter, Write};
 use std::ops::Range;
@@ -93,21 +92,11 @@ struct SchemeText {
 
 impl SchemeText {
     fn read(path: &Path) -> Result<SchemeText, Error> {
-        let bytes = fs::read(path).map_err(|source| Error::Input {
-            path: path.to_path_buf(),
-            source,
-        })?;
-        let sha256 = grid::hex(&Sha256::digest(&bytes));
-        let text = String::from_utf8(bytes).map_err(|_| {
-            bad(
-                &path.display().to_string(),
-                "the scheme file is not UTF-8 text",
-            )
-        })?;
+        let (text, source) = scheme::read_source(path)?;
         Ok(SchemeText {
             text,
-            file: path.display().to_string(),
-            sha256,
+            file: source.path,
+            sha256: source.sha256,
             prepared: std::sync::OnceLock::new(),
         })
     }
