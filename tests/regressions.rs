@@ -182,17 +182,16 @@ fields:
 }
 
 // Found while measuring the YAML limits (not by the fuzzer, whose inputs
-// stay a few kB): the YAML library refuses nesting deeper than 128 only
-// after its scanner has read the whole document, and that scanner
-// re-examines every open flow level at each token, so the time grows with
-// the square of the depth: 100,000 nested '[' took 33 s, a 1 MiB file of
-// them about 14 minutes. `yaml::check_flow_depth` now refuses them in one
-// pass.
+// stay a few kB): the former YAML library refused nesting deeper than 128
+// only after its scanner had read the whole document, in time quadratic in
+// the depth: 100,000 nested '[' took 33 s, a 1 MiB file of them about 14
+// minutes. The present reader stops at the 129th level while it reads.
 #[test]
 fn deeply_nested_flow_collections_are_refused_in_linear_time() {
     for (open, close) in [("[", "]"), ("{a: ", "}")] {
         let n = 500_000 / open.len();
         let text = format!("title: {}1{}\n", open.repeat(n), close.repeat(n));
+        assert!(text.len() > 500_000);
         let t = std::time::Instant::now();
         let e = scheme::parse(&text, "deep.yaml").unwrap_err();
         let dt = t.elapsed().as_secs_f64();
@@ -206,26 +205,34 @@ fn deeply_nested_flow_collections_are_refused_in_linear_time() {
     }
 }
 
-/// Found by fuzzing (`scheme_parse`): the flow-depth pre-check took the `{`
-/// of `energy:{{{...` for a flow mapping, but without a blank after the colon
-/// the whole value is one plain scalar, which the YAML library reads. The
-/// pre-check must never refuse what the library reads.
+/// Found by fuzzing (`scheme_parse`) in a former hand-written flow-depth
+/// pre-check: `energy:{{{...` without a blank after the colon is one plain
+/// scalar, not nested flow mappings, and must not be refused as too deep.
 #[test]
 fn colon_without_blank_does_not_open_flow_collections() {
     let deep = "{".repeat(300);
     let text = format!("title: base\nlevels:\n  g:\n    energy:{deep}\n");
-    assert!(levelplan::yaml::check_flow_depth(&text).is_ok());
-    assert!(levelplan::yaml::value_from_str(&text).is_ok());
-    // A real flow mapping nested that deep is still refused.
+    let e = scheme::parse(&text, "x.yaml").unwrap_err();
+    assert!(
+        e.diagnostics
+            .iter()
+            .all(|d| !d.expected.contains("nesting at most")),
+        "{e}"
+    );
+    // A real flow mapping nested that deep is refused.
     let real = format!("a: {}{}\n", "[".repeat(300), "]".repeat(300));
-    assert!(levelplan::yaml::check_flow_depth(&real).is_err());
+    let e = scheme::parse(&real, "x.yaml").unwrap_err();
+    assert!(
+        e.diagnostics[0].expected.contains("nesting at most 128"),
+        "{e}"
+    );
 }
 
-/// Found by fuzzing (`scheme_parse`, second run): a plain scalar at top level
-/// continues on every following line, whatever its indentation, until a
-/// comment; the `[` that start such a line are text. The pre-check counted
-/// them as nested flow sequences and refused a file the YAML library reads
-/// (as one string, which the validator then rejects with its own message).
+/// Found by fuzzing (`scheme_parse`, second run) in a former hand-written
+/// flow-depth pre-check: a plain scalar at top level continues on every
+/// following line, whatever its indentation, until a comment; the `[` that
+/// start such a line are text, not nesting (the file is one string, which
+/// the validator rejects with its own message).
 /// The fuzzer's input, with its runs of `[` and `I` written as repeats.
 #[test]
 fn brackets_starting_a_continued_plain_scalar_line_are_text() {
@@ -238,8 +245,6 @@ fn brackets_starting_a_continued_plain_scalar_line_are_text() {
         "[".repeat(46),
         "I".repeat(63)
     );
-    assert!(levelplan::yaml::value_from_str(&text).is_ok());
-    assert!(levelplan::yaml::check_flow_depth(&text).is_ok());
     let e = scheme::parse(&text, "fuzz.yaml").unwrap_err();
     assert!(
         e.diagnostics

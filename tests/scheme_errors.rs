@@ -818,3 +818,70 @@ fn overrides_replace_and_create_values() {
     assert_eq!((v, unit.as_str()), (2.5, "ea0"));
     assert!(scheme::numeric_value_at(BASE, "s.yaml", "solver.rtol").is_err());
 }
+
+/// Every budget of the YAML reader is refused with a located message, and
+/// quickly.
+#[test]
+fn yaml_budgets_are_refused_with_their_place() {
+    let timed = |text: &str| {
+        let t = std::time::Instant::now();
+        let d = one(text);
+        let secs = t.elapsed().as_secs_f64();
+        assert!(secs < 2.0, "took {secs} s: {d:?}");
+        assert!(d.line.is_some() && d.column.is_some(), "{d:?}");
+        d
+    };
+    // Depth: flow and block nesting, 129 levels.
+    let d = timed(&format!(
+        "title: x\nlevels: {}1{}\n",
+        "[".repeat(129),
+        "]".repeat(129)
+    ));
+    assert_eq!((d.line, d.column), (Some(2), Some(137)), "{d:?}");
+    assert_eq!(d.expected, "nesting at most 128 levels deep");
+    let mut block = String::from("levels:\n");
+    for k in 0..130 {
+        block.push_str(&format!("{}k{k}:\n", " ".repeat(k + 1)));
+    }
+    let d = timed(&block);
+    assert_eq!(d.expected, "nesting at most 128 levels deep");
+    // Nodes: one anchored list of 2,000 replayed by 1,000 aliases (2e6).
+    let text = format!(
+        "levels:\n  g: {{energy: 0 eV, label: &a [{}1]}}\ntargets: [{}*a]\n",
+        "1,".repeat(2_000),
+        "*a,".repeat(1_000)
+    );
+    let d = timed(&text);
+    assert_eq!(d.line, Some(3), "{d:?}");
+    assert!(
+        d.expected
+            .contains("at most 1000000 YAML nodes after alias expansion"),
+        "{d:?}"
+    );
+    assert!(d.found.contains("alias bomb"), "{d:?}");
+    // Aliases: the nine-level "billion laughs" file, refused where the
+    // expansion passes the node budget.
+    let mut bomb = String::from("a0: &a0 [lol,lol,lol,lol,lol,lol,lol,lol,lol]\n");
+    for i in 1..=9 {
+        let p = i - 1;
+        bomb.push_str(&format!(
+            "a{i}: &a{i} [*a{p},*a{p},*a{p},*a{p},*a{p},*a{p},*a{p},*a{p},*a{p}]\n"
+        ));
+    }
+    let d = timed(&bomb);
+    assert!(d.line >= Some(7), "{d:?}");
+    assert!(d.found.contains("alias bomb"), "{d:?}");
+    // Scalar text: a 100 kB string replayed by 50 aliases (5 MB).
+    let text = format!(
+        "title: &t \"{}\"\ntargets: [{}*t]\n",
+        "x".repeat(100_000),
+        "*t,".repeat(50)
+    );
+    let d = timed(&text);
+    assert_eq!(d.line, Some(2), "{d:?}");
+    assert!(
+        d.expected
+            .contains("at most 4194304 bytes of text after alias expansion"),
+        "{d:?}"
+    );
+}

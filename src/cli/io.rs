@@ -87,13 +87,3 @@ pub fn write_plot(
     write_atomic(path, svg.as_bytes())
 }
 
-/// Read a scheme file as text with its provenance, refused as `load`
-/// refuses it (size limit, UTF-8, a valid scheme).
-pub fn read_source(path: &Path) -> Result<(String, scheme::SchemeSource), Error> {
-    let (_, source) = scheme::load(path)?;
-    let text = std::fs::read_to_string(path).map_err(|source| Error::Input {
-        path: path.to_path_buf(),
-        source,
-    })?;
-    Ok((text, source))
-}

@@ -1,10 +1,12 @@
 //! Scheme files: YAML text to a validated [`crate::model::Model`].
 //!
-//! Owns: reading a scheme file (size limit, UTF-8, SHA-256 of its bytes),
-//! turning it into the model through the serde mirror ([`raw`]) and the
-//! validator ([`validate`]), command-line style overrides of single numeric
-//! values, and [`SchemeError`], which lists every problem found with file,
-//! line, column, key path, what was expected and what was found.
+//! Owns: reading a scheme file ([`read_source`]: size limit, UTF-8, SHA-256
+//! of its bytes; every subcommand reads schemes through it), turning it into
+//! the model through the serde mirror ([`raw`]) and the validator
+//! ([`validate`]), command-line style overrides of single numeric values
+//! (on the raw scheme as a JSON value), and [`SchemeError`], which lists
+//! every problem found with file, line, column, key path, what was expected
+//! and what was found.
 //! Must not: print, or know about solvers, estimates or output formats.
 //! The YAML library is reached only through [`crate::yaml`].
 //!
@@ -15,9 +17,10 @@ pub mod raw;
 mod validate;
 
 use crate::model::Model;
-use crate::yaml::{self, Value, YamlError, YamlErrorKind};
+use crate::yaml::{self, YamlError, YamlErrorKind};
 use locate::{KeyPath, Locator};
 use raw::RawScheme;
+use serde_json::{Map, Value};
 use sha2::{Digest, Sha256};
 use std::fmt;
 use std::io::Read;
@@ -130,6 +133,15 @@ impl SchemeError {
 
 /// Read, hash and validate a scheme file.
 pub fn load(path: &Path) -> Result<(Model, SchemeSource), SchemeError> {
+    let (text, source) = read_source(path)?;
+    let model = parse(&text, &source.path)?;
+    Ok((model, source))
+}
+
+/// Read a scheme file as text: at most [`yaml::MAX_FILE_BYTES`] bytes (a
+/// file that never ends is read only that far), UTF-8, with the SHA-256 of
+/// its bytes. The one way every subcommand reads a scheme.
+pub fn read_source(path: &Path) -> Result<(String, SchemeSource), SchemeError> {
     let name = path.display().to_string();
     let fail = |expected: &str, found: String| {
         SchemeError::one(&name, Diagnostic::whole_file(expected, found))
@@ -146,11 +158,11 @@ pub fn load(path: &Path) -> Result<(Model, SchemeSource), SchemeError> {
                 "a scheme file of at most {} bytes (1 MiB)",
                 yaml::MAX_FILE_BYTES
             ),
-            format!("a larger file ({})", e.message),
+            format!("a larger file ({})", e.found),
         ));
     }
     let text = match std::str::from_utf8(&bytes) {
-        Ok(t) => t,
+        Ok(t) => t.to_string(),
         Err(e) => {
             let at = e.valid_up_to();
             let before = &bytes[..at];
@@ -176,12 +188,11 @@ pub fn load(path: &Path) -> Result<(Model, SchemeSource), SchemeError> {
             ));
         }
     };
-    let model = parse(text, &name)?;
     let sha256 = Sha256::digest(&bytes)
         .iter()
         .map(|b| format!("{b:02x}"))
         .collect::<String>();
-    Ok((model, SchemeSource { path: name, sha256 }))
+    Ok((text, SchemeSource { path: name, sha256 }))
 }
 
 fn io_kind(e: &std::io::Error) -> &'static str {
@@ -213,15 +224,32 @@ pub fn parse_with_overrides(
     overrides: &[(String, String)],
 ) -> Result<Model, SchemeError> {
     if overrides.is_empty() {
-        let raw: Option<RawScheme> = yaml::from_str(text).map_err(|e| yaml_error(file_name, e))?;
-        return validate_raw(&raw.unwrap_or_default(), text, file_name, Vec::new());
+        let raw = read_raw(text, file_name)?;
+        return validate_raw(&raw, text, file_name, Vec::new());
     }
     Prepared::new(text, file_name)?.with_overrides(overrides)
 }
 
+/// The serde mirror of scheme text (an empty file is an empty scheme).
+fn read_raw(text: &str, file_name: &str) -> Result<RawScheme, SchemeError> {
+    let raw: Option<RawScheme> = yaml::from_str(text).map_err(|e| yaml_error(file_name, e))?;
+    Ok(raw.unwrap_or_default())
+}
+
+/// The raw scheme as a JSON value (file order kept, absent keys absent):
+/// what overrides walk and replace.
+fn raw_value(raw: &RawScheme, file_name: &str) -> Result<Value, SchemeError> {
+    serde_json::to_value(raw).map_err(|e| {
+        SchemeError::one(
+            file_name,
+            Diagnostic::whole_file("a scheme that can be varied", e.to_string()),
+        )
+    })
+}
+
 /// A scheme read and validated once, ready to be re-validated with overrides
 /// many times (a scan): the YAML is parsed once, each point only replaces
-/// values in the parsed tree and validates.
+/// values in the raw scheme (as a JSON value) and validates.
 #[derive(Debug, Clone)]
 pub struct Prepared {
     text: String,
@@ -232,10 +260,9 @@ pub struct Prepared {
 impl Prepared {
     /// Parse and validate `text` (it must be valid on its own).
     pub fn new(text: &str, file_name: &str) -> Result<Prepared, SchemeError> {
-        // Typed parse first: its errors carry lines and columns.
-        let raw: Option<RawScheme> = yaml::from_str(text).map_err(|e| yaml_error(file_name, e))?;
-        validate_raw(&raw.unwrap_or_default(), text, file_name, Vec::new())?;
-        let value: Value = yaml::value_from_str(text).map_err(|e| yaml_error(file_name, e))?;
+        let raw = read_raw(text, file_name)?;
+        validate_raw(&raw, text, file_name, Vec::new())?;
+        let value = raw_value(&raw, file_name)?;
         Ok(Prepared {
             text: text.to_string(),
             file: file_name.to_string(),
@@ -270,9 +297,13 @@ impl Prepared {
                 diagnostics: diags,
             });
         }
-        let raw: Option<RawScheme> =
-            yaml::from_value(value).map_err(|e| yaml_error(file_name, e))?;
-        validate_raw(&raw.unwrap_or_default(), text, file_name, overridden)
+        let raw: RawScheme = serde_json::from_value(value).map_err(|e| {
+            SchemeError::one(
+                file_name,
+                Diagnostic::whole_file("overrides of numeric values", e.to_string()),
+            )
+        })?;
+        validate_raw(&raw, text, file_name, overridden)
     }
 }
 
@@ -318,7 +349,7 @@ pub fn numeric_value_at(
     file_name: &str,
     path: &str,
 ) -> Result<(f64, String), SchemeError> {
-    let value: Value = yaml::value_from_str(text).map_err(|e| yaml_error(file_name, e))?;
+    let value = raw_value(&read_raw(text, file_name)?, file_name)?;
     let fail = |kp: &KeyPath, expected: String, found: String| {
         let pos = Locator::new(text).locate(kp);
         SchemeError::one(
@@ -381,30 +412,14 @@ fn split_path(path: &str) -> Result<Vec<String>, (String, String)> {
 
 type WalkErr = (KeyPath, String, String);
 
-fn map_get<'v>(m: &'v yaml::Mapping, key: &str) -> Option<&'v Value> {
-    m.iter()
-        .find(|(k, _)| key_text(k).as_deref() == Some(key))
-        .map(|(_, v)| v)
-}
-
-fn key_text(k: &Value) -> Option<String> {
-    match k {
-        Value::String(s) => Some(s.clone()),
-        Value::Number(n) => Some(n.to_string()),
-        Value::Bool(b) => Some(b.to_string()),
-        _ => None,
-    }
-}
-
 fn describe(v: &Value) -> String {
     match v {
-        Value::Mapping(_) => "a mapping".into(),
-        Value::Sequence(_) => "a list".into(),
+        Value::Object(_) => "a mapping".into(),
+        Value::Array(_) => "a list".into(),
         Value::String(s) => format!("'{s}'"),
-        Value::Number(n) => format!("'{n}'"),
+        Value::Number(n) => format!("'{}'", n.as_f64().map_or(n.to_string(), raw::format_number)),
         Value::Bool(b) => format!("'{b}'"),
         Value::Null => "an empty value".into(),
-        Value::Tagged(_) => "a tagged value".into(),
     }
 }
 
@@ -414,13 +429,13 @@ fn walk<'v>(root: &'v Value, segs: &[String]) -> Result<(&'v Value, KeyPath), Wa
     let mut kp = KeyPath::root();
     for s in segs {
         match node {
-            Value::Mapping(m) => match map_get(m, s) {
+            Value::Object(m) => match m.get(s.as_str()) {
                 Some(v) => {
                     node = v;
                     kp = kp.k(s);
                 }
                 None => {
-                    let keys: Vec<String> = m.keys().filter_map(key_text).collect();
+                    let keys: Vec<&str> = m.keys().map(String::as_str).collect();
                     return Err((
                         kp.clone(),
                         format!("one of the keys here ({})", keys.join(", ")),
@@ -435,7 +450,7 @@ fn walk<'v>(root: &'v Value, segs: &[String]) -> Result<(&'v Value, KeyPath), Wa
                     ));
                 }
             },
-            Value::Sequence(v) => match s.parse::<usize>() {
+            Value::Array(v) => match s.parse::<usize>() {
                 Ok(i) if i < v.len() => {
                     node = &v[i];
                     kp = kp.i(i);
@@ -519,7 +534,8 @@ fn apply_override(root: &mut Value, path: &str, new: &str) -> Result<KeyPath, Wa
         ));
     };
     let replacement = match crate::units::split_quantity(new) {
-        Some((_, u)) if u.is_empty() => Value::Number(yaml::Number::from(new_v)),
+        Some((_, u)) if u.is_empty() => serde_json::Number::from_f64(new_v)
+            .map_or_else(|| Value::String(new.trim().to_string()), Value::Number),
         _ => Value::String(new.trim().to_string()),
     };
     let (parent_segs, last) = segs.split_at(segs.len() - 1);
@@ -529,19 +545,16 @@ fn apply_override(root: &mut Value, path: &str, new: &str) -> Result<KeyPath, Wa
     let exists = walk(root, &segs).is_ok();
     if !exists && known_numeric_key(&segs) {
         if parent_segs.len() == 1 && (parent_segs[0] == "window" || parent_segs[0] == "solver") {
-            if let Value::Mapping(m) = root {
-                if map_get(m, &parent_segs[0]).is_none() {
-                    m.insert(
-                        Value::String(parent_segs[0].clone()),
-                        Value::Mapping(yaml::Mapping::new()),
-                    );
+            if let Value::Object(m) = root {
+                if !m.contains_key(&parent_segs[0]) {
+                    m.insert(parent_segs[0].clone(), Value::Object(Map::new()));
                 }
             }
         }
-        if let Ok((Value::Mapping(_), _)) = walk(root, parent_segs) {
+        if let Ok((Value::Object(_), _)) = walk(root, parent_segs) {
             let parent = walk_mut(root, parent_segs);
-            if let Some(Value::Mapping(m)) = parent {
-                m.insert(Value::String(last.clone()), replacement);
+            if let Some(Value::Object(m)) = parent {
+                m.insert(last.clone(), replacement);
                 let (_, kp) = walk(root, &segs)?;
                 return Ok(kp);
             }
@@ -565,14 +578,8 @@ fn walk_mut<'v>(root: &'v mut Value, segs: &[String]) -> Option<&'v mut Value> {
     let mut node = root;
     for s in segs {
         node = match node {
-            Value::Mapping(m) => {
-                let key = m
-                    .keys()
-                    .find(|k| key_text(k).as_deref() == Some(s.as_str()))?
-                    .clone();
-                m.get_mut(&key)?
-            }
-            Value::Sequence(v) => v.get_mut(s.parse::<usize>().ok()?)?,
+            Value::Object(m) => m.get_mut(s.as_str())?,
+            Value::Array(v) => v.get_mut(s.parse::<usize>().ok()?)?,
             _ => return None,
         };
     }
@@ -581,91 +588,22 @@ fn walk_mut<'v>(root: &'v mut Value, segs: &[String]) -> Option<&'v mut Value> {
 
 /// A YAML-stage error as a diagnostic.
 fn yaml_error(file: &str, e: YamlError) -> SchemeError {
-    let (expected, found, path) = match e.kind {
-        YamlErrorKind::TooLarge => (
-            format!("a scheme of at most {} bytes (1 MiB)", yaml::MAX_FILE_BYTES),
-            e.message.clone(),
-            String::new(),
-        ),
-        YamlErrorKind::TooManyNodes => (
-            format!(
-                "at most {} YAML nodes after alias expansion",
-                yaml::MAX_NODES
-            ),
-            e.message.clone(),
-            e.path.clone().unwrap_or_default(),
-        ),
-        YamlErrorKind::TooDeep => (
-            format!("nesting at most {} levels deep", yaml::MAX_DEPTH),
-            "deeper nesting".to_string(),
-            e.path.clone().unwrap_or_default(),
-        ),
-        YamlErrorKind::Syntax => (
-            "valid YAML".to_string(),
-            format!("a syntax error: {}", e.message),
-            e.path.clone().unwrap_or_default(),
-        ),
-        YamlErrorKind::Data => data_error(&e),
+    let expected = match e.kind {
+        YamlErrorKind::TooLarge => {
+            format!("a scheme of at most {} bytes (1 MiB)", yaml::MAX_FILE_BYTES)
+        }
+        _ => e.expected,
     };
     SchemeError::one(
         file,
         Diagnostic {
             line: e.line,
             column: e.column,
-            path,
+            path: e.path.unwrap_or_default(),
             expected,
-            found,
+            found: e.found,
         },
     )
-}
-
-/// Rephrase serde's "unknown field" / "invalid type" messages.
-fn data_error(e: &YamlError) -> (String, String, String) {
-    let base = e.path.clone().unwrap_or_default();
-    let join = |k: &str| {
-        if base.is_empty() {
-            k.to_string()
-        } else {
-            format!("{base}.{k}")
-        }
-    };
-    let m = e.message.as_str();
-    if let Some(rest) = m.strip_prefix("unknown field `") {
-        if let Some((key, tail)) = rest.split_once('`') {
-            let accepted = tail
-                .trim_start_matches(',')
-                .trim()
-                .trim_start_matches("expected one of ")
-                .trim_start_matches("expected ")
-                .replace('`', "");
-            return (
-                format!("one of the keys {accepted}"),
-                format!("unknown key '{key}'"),
-                join(key),
-            );
-        }
-    }
-    if let Some(rest) = m.strip_prefix("invalid type: ") {
-        if let Some((found, exp)) = rest.split_once(", expected ") {
-            return (rephrase_expected(exp), found.to_string(), base);
-        }
-    }
-    if let Some(rest) = m.strip_prefix("invalid value: ") {
-        if let Some((found, exp)) = rest.split_once(", expected ") {
-            return (rephrase_expected(exp), found.to_string(), base);
-        }
-    }
-    ("a valid scheme".to_string(), m.to_string(), base)
-}
-
-fn rephrase_expected(exp: &str) -> String {
-    match exp.strip_prefix("struct ") {
-        Some(name) => format!("a mapping of {name} keys"),
-        None => match exp {
-            "a sequence" => "a list".to_string(),
-            other => other.to_string(),
-        },
-    }
 }
 
 impl fmt::Display for SchemeSource {

@@ -7,7 +7,8 @@
 //! almost every key is optional here and scalars are kept as written.
 
 use serde::de::{self, Deserializer, MapAccess, Visitor};
-use serde::Deserialize;
+use serde::ser::{SerializeMap, Serializer};
+use serde::{Deserialize, Serialize};
 use std::fmt;
 
 /// A scalar as written: a string, a number or a boolean.
@@ -191,98 +192,188 @@ impl<'de> Deserialize<'de> for Initial {
     }
 }
 
+// Serialization: the raw scheme as a JSON value, for overrides in scans
+// (`scheme::Prepared`). Absent keys stay absent; a number stays a number.
+
+impl Serialize for Scalar {
+    fn serialize<S: Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
+        match self {
+            Scalar::Str(t) => s.serialize_str(t),
+            // JSON has no infinities: those are written as their text.
+            Scalar::Num(x) if !x.is_finite() => s.serialize_str(&self.text()),
+            Scalar::Num(x) => s.serialize_f64(*x),
+            Scalar::Bool(b) => s.serialize_bool(*b),
+        }
+    }
+}
+
+impl Serialize for Id {
+    fn serialize<S: Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
+        s.serialize_str(&self.0)
+    }
+}
+
+impl<T: Serialize> Serialize for Ordered<T> {
+    fn serialize<S: Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
+        let mut m = s.serialize_map(Some(self.0.len()))?;
+        for (k, v) in &self.0 {
+            m.serialize_entry(&k.0, v)?;
+        }
+        m.end()
+    }
+}
+
+impl Serialize for Initial {
+    fn serialize<S: Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
+        match self {
+            Initial::One(id) => id.serialize(s),
+            Initial::Map(m) => m.serialize(s),
+        }
+    }
+}
+
 /// The whole file.
-#[derive(Debug, Clone, Default, Deserialize)]
+#[derive(Debug, Clone, Default, Deserialize, Serialize)]
 #[serde(deny_unknown_fields, rename = "scheme")]
 pub struct RawScheme {
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub title: Option<Scalar>,
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub levels: Option<Ordered<Option<RawLevel>>>,
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub initial: Option<Initial>,
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub targets: Option<Vec<Id>>,
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub tolerance: Option<Scalar>,
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub couplings: Option<Vec<RawCoupling>>,
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub fields: Option<Ordered<Option<RawField>>>,
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub window: Option<RawWindow>,
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub solver: Option<RawSolver>,
 }
 
-#[derive(Debug, Clone, Default, Deserialize)]
+#[derive(Debug, Clone, Default, Deserialize, Serialize)]
 #[serde(deny_unknown_fields, rename = "level")]
 pub struct RawLevel {
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub energy: Option<Scalar>,
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub lifetime: Option<Scalar>,
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub linewidth: Option<Scalar>,
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub tolerance: Option<Scalar>,
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub label: Option<Scalar>,
 }
 
-#[derive(Debug, Clone, Default, Deserialize)]
+#[derive(Debug, Clone, Default, Deserialize, Serialize)]
 #[serde(deny_unknown_fields, rename = "coupling")]
 pub struct RawCoupling {
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub between: Option<Vec<Id>>,
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub dipole: Option<Scalar>,
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub einstein_a: Option<Scalar>,
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub g_lower: Option<Scalar>,
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub g_upper: Option<Scalar>,
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub fields: Option<Vec<Id>>,
 }
 
-#[derive(Debug, Clone, Default, Deserialize)]
+#[derive(Debug, Clone, Default, Deserialize, Serialize)]
 #[serde(deny_unknown_fields, rename = "field")]
 pub struct RawField {
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub frequency: Option<Scalar>,
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub wavelength: Option<Scalar>,
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub tuned: Option<RawTuned>,
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub intensity: Option<Scalar>,
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub power: Option<Scalar>,
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub waist: Option<Scalar>,
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub rabi: Option<RawOnValue>,
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub area: Option<RawOnValue>,
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub envelope: Option<RawEnvelope>,
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub chirp: Option<Scalar>,
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub phase: Option<Scalar>,
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub rwa: Option<bool>,
 }
 
-#[derive(Debug, Clone, Default, Deserialize)]
+#[derive(Debug, Clone, Default, Deserialize, Serialize)]
 #[serde(deny_unknown_fields, rename = "tuned")]
 pub struct RawTuned {
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub to: Option<Vec<Id>>,
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub detuning: Option<Scalar>,
 }
 
-#[derive(Debug, Clone, Default, Deserialize)]
+#[derive(Debug, Clone, Default, Deserialize, Serialize)]
 #[serde(deny_unknown_fields, rename = "strength")]
 pub struct RawOnValue {
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub on: Option<Vec<Id>>,
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub value: Option<Scalar>,
 }
 
-#[derive(Debug, Clone, Default, Deserialize)]
+#[derive(Debug, Clone, Default, Deserialize, Serialize)]
 #[serde(deny_unknown_fields, rename = "envelope")]
 pub struct RawEnvelope {
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub shape: Option<Scalar>,
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub start: Option<Scalar>,
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub duration: Option<Scalar>,
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub center: Option<Scalar>,
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub fwhm: Option<Scalar>,
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub sigma: Option<Scalar>,
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub tau: Option<Scalar>,
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub points: Option<Vec<Vec<Option<Scalar>>>>,
 }
 
-#[derive(Debug, Clone, Default, Deserialize)]
+#[derive(Debug, Clone, Default, Deserialize, Serialize)]
 #[serde(deny_unknown_fields, rename = "window")]
 pub struct RawWindow {
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub start: Option<Scalar>,
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub end: Option<Scalar>,
 }
 
-#[derive(Debug, Clone, Default, Deserialize)]
+#[derive(Debug, Clone, Default, Deserialize, Serialize)]
 #[serde(deny_unknown_fields, rename = "solver")]
 pub struct RawSolver {
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub rtol: Option<Scalar>,
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub atol: Option<Scalar>,
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub method: Option<Scalar>,
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub detuning_cutoff: Option<Scalar>,
 }
