@@ -144,6 +144,8 @@ fn missing_scheme_is_bad_input_and_writes_nothing() {
     assert_eq!(out.status.code(), Some(2));
     let err = String::from_utf8_lossy(&out.stderr);
     assert!(err.contains("no/such/scheme.yaml"), "{err}");
+    assert!(err.contains("expected a readable scheme file"), "{err}");
+    assert!(err.contains("no such file"), "{err}");
     assert!(!target.exists());
 }
 

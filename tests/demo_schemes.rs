@@ -13,11 +13,14 @@ fn dir() -> PathBuf {
     Path::new(env!("CARGO_MANIFEST_DIR")).join("level_schemes")
 }
 
+/// The model and source of a scheme file, read as the command line reads it.
+fn read(p: &Path) -> (Model, scheme::SchemeSource) {
+    let bytes = std::fs::read(p).unwrap_or_else(|e| panic!("{}: {e}", p.display()));
+    scheme::from_bytes(&bytes, &p.display().to_string()).unwrap_or_else(|e| panic!("{e}"))
+}
+
 fn load(name: &str) -> Model {
-    match scheme::load(&dir().join(name)) {
-        Ok((m, _)) => m,
-        Err(e) => panic!("{e}"),
-    }
+    read(&dir().join(name)).0
 }
 
 fn idx(m: &Model, id: &str) -> usize {
@@ -36,7 +39,7 @@ fn every_demo_parses_and_is_labelled_illustrative() {
         if p.extension().and_then(|e| e.to_str()) != Some("yaml") {
             continue;
         }
-        let (m, src) = scheme::load(&p).unwrap_or_else(|e| panic!("{e}"));
+        let (m, src) = read(&p);
         assert!(
             !m.levels.is_empty() && !m.fields.is_empty(),
             "{}",

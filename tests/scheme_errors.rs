@@ -409,7 +409,10 @@ fn empty_level_list() {
 
 #[test]
 fn file_that_does_not_exist() {
-    let e = scheme::load(std::path::Path::new("/nonexistent/dir/scheme.yaml")).unwrap_err();
+    let e = scheme::unreadable(
+        "/nonexistent/dir/scheme.yaml",
+        &std::io::Error::from(std::io::ErrorKind::NotFound),
+    );
     assert_eq!(e.file, "/nonexistent/dir/scheme.yaml");
     assert_eq!(e.diagnostics.len(), 1);
     let d = &e.diagnostics[0];
@@ -422,19 +425,14 @@ fn file_that_does_not_exist() {
 
 #[test]
 fn file_that_is_not_utf8() {
-    let dir = std::env::temp_dir().join(format!("levelplan-utf8-{}", std::process::id()));
-    std::fs::create_dir_all(&dir).unwrap();
-    let p = dir.join("latin1.yaml");
     let mut bytes = b"title: caf".to_vec();
     bytes.push(0xe9); // e-acute in Latin-1
     bytes.extend_from_slice(b"\nlevels: {}\n");
-    std::fs::write(&p, &bytes).unwrap();
-    let e = scheme::load(&p).unwrap_err();
+    let e = scheme::from_bytes(&bytes, "latin1.yaml").unwrap_err();
     let d = &e.diagnostics[0];
     assert_eq!((d.line, d.column), (Some(1), Some(11)));
     assert_eq!(d.expected, "UTF-8 text");
     assert!(d.found.contains("0xe9"), "{d:?}");
-    std::fs::remove_dir_all(&dir).unwrap();
 }
 
 #[test]

@@ -9,7 +9,7 @@ use levelplan::error::Error;
 use levelplan::model::Model;
 use levelplan::report::Provenance;
 use levelplan::scheme;
-use std::io::{IsTerminal, Write};
+use std::io::{IsTerminal, Read, Write};
 use std::path::{Path, PathBuf};
 
 /// Where a command's main output goes.
@@ -57,9 +57,29 @@ impl Sink {
     }
 }
 
+/// A scheme file's bytes: at most [`scheme::READ_LIMIT`] of them, so a huge
+/// file (or one that never ends, like a device) is refused without reading it
+/// all.
+fn read_bytes(path: &Path) -> Result<(Vec<u8>, String), Error> {
+    let name = path.display().to_string();
+    let mut bytes = Vec::new();
+    std::fs::File::open(path)
+        .and_then(|f| f.take(scheme::READ_LIMIT).read_to_end(&mut bytes))
+        .map_err(|e| scheme::unreadable(&name, &e))?;
+    Ok((bytes, name))
+}
+
+/// Read a scheme file as text with its provenance (size limit, UTF-8,
+/// SHA-256): the one way every command reads a scheme.
+pub fn read_source(path: &Path) -> Result<(String, scheme::SchemeSource), Error> {
+    let (bytes, name) = read_bytes(path)?;
+    Ok(scheme::source_from_bytes(&bytes, &name)?)
+}
+
 /// Read and validate a scheme file; its provenance (name, SHA-256).
 pub fn load(path: &Path) -> Result<(Model, Provenance), Error> {
-    let (model, source) = scheme::load(path)?;
+    let (bytes, name) = read_bytes(path)?;
+    let (model, source) = scheme::from_bytes(&bytes, &name)?;
     Ok((model, Provenance::new(&source.path, &source.sha256)))
 }
 
@@ -86,4 +106,3 @@ pub fn write_plot(
     })?;
     write_atomic(path, svg.as_bytes())
 }
-

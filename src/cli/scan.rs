@@ -37,7 +37,7 @@ fn bad(what: &str, message: impl Into<String>) -> Error {
 /// Read a scheme file for many runs (scan points, tune), with the limits
 /// every command applies.
 pub fn read_study(path: &Path) -> Result<Study, Error> {
-    let (text, source) = levelplan::scheme::read_source(path)?;
+    let (text, source) = super::io::read_source(path)?;
     Ok(Study::new(text, source))
 }
 

@@ -2,8 +2,8 @@
 //! count, shards merged, resume after a cut, refusals.
 
 use super::*;
-use levelplan::report::Provenance;
 use levelplan::render::scan_plot::plot_scan_text;
+use levelplan::report::Provenance;
 use levelplan::scan::merge::merge_texts;
 use levelplan::scan::{Axis, Spacing};
 

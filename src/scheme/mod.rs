@@ -14,6 +14,7 @@
 
 pub mod locate;
 pub mod raw;
+mod source;
 mod validate;
 
 use crate::model::Model;
@@ -21,11 +22,9 @@ use crate::yaml::{self, YamlError, YamlErrorKind};
 use locate::{KeyPath, Locator};
 use raw::RawScheme;
 use serde_json::{Map, Value};
-use sha2::{Digest, Sha256};
 use std::fmt;
-use std::io::Read;
-use std::path::Path;
 
+pub use source::{from_bytes, source_from_bytes, unreadable, READ_LIMIT};
 pub use validate::valid_id;
 
 /// Most levels a scheme may have.
@@ -123,83 +122,11 @@ fn render_all(file: &str, diags: &[Diagnostic]) -> String {
 }
 
 impl SchemeError {
-    fn one(file: &str, d: Diagnostic) -> Self {
+    pub(crate) fn one(file: &str, d: Diagnostic) -> Self {
         SchemeError {
             file: file.to_string(),
             diagnostics: vec![d],
         }
-    }
-}
-
-/// Read, hash and validate a scheme file.
-pub fn load(path: &Path) -> Result<(Model, SchemeSource), SchemeError> {
-    let (text, source) = read_source(path)?;
-    let model = parse(&text, &source.path)?;
-    Ok((model, source))
-}
-
-/// Read a scheme file as text: at most [`yaml::MAX_FILE_BYTES`] bytes (a
-/// file that never ends is read only that far), UTF-8, with the SHA-256 of
-/// its bytes. The one way every subcommand reads a scheme.
-pub fn read_source(path: &Path) -> Result<(String, SchemeSource), SchemeError> {
-    let name = path.display().to_string();
-    let fail = |expected: &str, found: String| {
-        SchemeError::one(&name, Diagnostic::whole_file(expected, found))
-    };
-    let file = std::fs::File::open(path)
-        .map_err(|e| fail("a readable scheme file", format!("{} ({e})", io_kind(&e))))?;
-    let mut bytes = Vec::new();
-    file.take(yaml::MAX_FILE_BYTES as u64 + 1)
-        .read_to_end(&mut bytes)
-        .map_err(|e| fail("a readable scheme file", format!("{} ({e})", io_kind(&e))))?;
-    if let Err(e) = yaml::check_size(bytes.len()) {
-        return Err(fail(
-            &format!(
-                "a scheme file of at most {} bytes (1 MiB)",
-                yaml::MAX_FILE_BYTES
-            ),
-            format!("a larger file ({})", e.found),
-        ));
-    }
-    let text = match std::str::from_utf8(&bytes) {
-        Ok(t) => t.to_string(),
-        Err(e) => {
-            let at = e.valid_up_to();
-            let before = &bytes[..at];
-            let line = before.iter().filter(|&&b| b == b'\n').count() + 1;
-            let col = at
-                - before
-                    .iter()
-                    .rposition(|&b| b == b'\n')
-                    .map_or(0, |p| p + 1)
-                + 1;
-            return Err(SchemeError::one(
-                &name,
-                Diagnostic {
-                    line: Some(line),
-                    column: Some(col),
-                    path: String::new(),
-                    expected: "UTF-8 text".into(),
-                    found: format!(
-                        "a byte that is not UTF-8 (0x{:02x}) at offset {at}",
-                        bytes[at]
-                    ),
-                },
-            ));
-        }
-    };
-    let sha256 = Sha256::digest(&bytes)
-        .iter()
-        .map(|b| format!("{b:02x}"))
-        .collect::<String>();
-    Ok((text, SchemeSource { path: name, sha256 }))
-}
-
-fn io_kind(e: &std::io::Error) -> &'static str {
-    match e.kind() {
-        std::io::ErrorKind::NotFound => "no such file",
-        std::io::ErrorKind::PermissionDenied => "permission denied",
-        _ => "an unreadable file",
     }
 }
 
