@@ -100,7 +100,7 @@ pub struct RemedyRow {
     /// s
     pub length_for_tolerance: Option<f64>,
     /// s, the present length parameter of that pulse, same definition as
-    /// `length_for_tolerance` (duration, Gaussian intensity FWHM, sech tau,
+    /// `length_for_tolerance` (duration, Gaussian and sech intensity FWHM,
     /// sample span)
     pub present_length: f64,
     /// s, the intensity FWHM matched by the Gaussian and Blackman replacements
@@ -298,19 +298,7 @@ fn remedy_row(model: &Model, r: &estimate::Remedy) -> RemedyRow {
 /// The duration measure of an envelope used in remedies: the duration of
 /// finite pulses, the intensity FWHM of Gaussian and sech pulses, the sample span.
 pub fn envelope_length(env: &crate::model::Envelope) -> f64 {
-    use crate::model::Envelope::*;
-    match env {
-        Rectangular { duration, .. } | Sin2 { duration, .. } | Blackman { duration, .. } => {
-            *duration
-        }
-        Gaussian { sigma, .. } => 2.0 * (2.0f64.ln()).sqrt() * sigma,
-        // sech^2(x/tau) = 1/2 at x = tau acosh(sqrt 2)
-        Sech { tau, .. } => 2.0 * tau * (2.0f64.sqrt()).acosh(),
-        Samples { times, .. } => match (times.first(), times.last()) {
-            (Some(a), Some(b)) => b - a,
-            _ => 0.0,
-        },
-    }
+    env.length()
 }
 
 /// Assemble the vet report. `tolerance_override` replaces the scheme's

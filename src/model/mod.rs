@@ -1,20 +1,31 @@
 //! The validated, unit-free model of a scheme.
 //!
 //! Owns: the plain data every later stage works from (levels, couplings, fields,
-//! drives, window, solver settings) and the envelope mathematics (value, area,
-//! centre, support). Everything here is SI with *angular* frequencies
-//! (rad/s), energies as angular frequencies E/hbar, times in seconds.
+//! drives, window, solver settings), the envelope shapes (`envelope/`, one
+//! file per shape), the field physics (`field.rs`: Rabi frequencies from
+//! intensity, area and dipole) and the validated builder (`builder.rs`).
+//! Everything here is SI with *angular* frequencies (rad/s), energies as
+//! angular frequencies E/hbar, times in seconds.
 //!
 //! Must not: know about YAML, strings with units, files, or output formats.
-//! Only `scheme` builds a [`Model`]; it is immutable afterwards except through
-//! the explicit setters the scan module uses, which re-run no validation and
-//! therefore only change plain numbers.
+//! A [`Model`] is built by `scheme` validation or by [`ModelBuilder`], which
+//! both end in the builder's checks; it is immutable afterwards except
+//! through the explicit setters the scan module uses, which re-run no
+//! validation and therefore only change plain numbers.
+
+mod builder;
+pub mod envelope;
+mod field;
+
+pub use builder::{ModelBuilder, ModelError, Part, POPULATION_SUM_TOLERANCE};
+pub use envelope::{
+    gaussian_sigma_from_intensity_fwhm, sech_intensity_fwhm, Envelope, BLACKMAN, TAIL_CUTOFF,
+};
+pub use field::{
+    intensity_from_rabi, rabi_by_dipole_ratio, rabi_from_area, rabi_from_intensity, Field,
+};
 
 use std::f64::consts::PI;
-
-/// Envelope value below which Gaussian/sech tails are treated as zero when the
-/// default window is chosen.
-pub const TAIL_CUTOFF: f64 = 1e-8;
 
 /// A validated scheme: SI numbers only.
 #[derive(Debug, Clone, PartialEq)]
@@ -85,34 +96,6 @@ pub struct Coupling {
     pub dipole: Dipole,
 }
 
-/// A laser field.
-#[derive(Debug, Clone, PartialEq)]
-pub struct Field {
-    pub id: String,
-    /// Carrier angular frequency omega_L (rad/s) at the envelope centre.
-    pub omega: f64,
-    pub envelope: Envelope,
-    /// Chirp as d(omega)/dt (rad/s^2), i.e. 2 pi beta with beta in Hz/s.
-    /// Instantaneous frequency omega + chirp (t - t_c).
-    pub chirp: f64,
-    /// Constant phase (rad).
-    pub phase: f64,
-    /// Rotating-wave approximation on (true) or counter-rotating term kept (false).
-    pub rwa: bool,
-    /// Peak intensity I = c eps0 E0^2 / 2 (W/m^2), when it is known (set from
-    /// intensity or power, or from a Rabi frequency on an absolute dipole).
-    pub peak_intensity: Option<f64>,
-}
-
-impl Field {
-    /// Total phase phi(t) = omega_L t + (chirp/2) (t - t_c)^2 + phase.
-    #[inline]
-    pub fn phase_at(&self, t: f64) -> f64 {
-        let dt = t - self.envelope.center();
-        self.omega * t + 0.5 * self.chirp * dt * dt + self.phase
-    }
-}
-
 /// One field acting on one coupling.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Drive {
@@ -176,225 +159,6 @@ impl Default for SolverSettings {
     }
 }
 
-/// A pulse envelope f(t), peaking at 1 (samples: as given).
-#[derive(Debug, Clone, PartialEq)]
-pub enum Envelope {
-    /// f = 1 on [start, start + duration), 0 elsewhere.
-    Rectangular { start: f64, duration: f64 },
-    /// f = exp(-(t - center)^2 / (2 sigma^2)).
-    Gaussian { center: f64, sigma: f64 },
-    /// f = sech((t - center) / tau).
-    Sech { center: f64, tau: f64 },
-    /// f = sin^2(pi (t - start) / duration) on [start, start + duration].
-    Sin2 { start: f64, duration: f64 },
-    /// Blackman window 0.42 - 0.5 cos(2 pi x) + 0.08 cos(4 pi x), x = (t - start)/duration.
-    Blackman { start: f64, duration: f64 },
-    /// Linear interpolation between (times[i], values[i]); 0 outside.
-    /// Times strictly increasing, at least two points.
-    Samples { times: Vec<f64>, values: Vec<f64> },
-}
-
-/// Blackman window coefficients (a0, a1, a2).
-pub const BLACKMAN: (f64, f64, f64) = (0.42, 0.5, 0.08);
-
-/// sigma = FWHM / (2 sqrt(2 ln 2)) for the *amplitude*; the scheme's FWHM is
-/// of the intensity |f|^2, whose sigma is sigma/sqrt(2), so
-/// sigma_amplitude = FWHM_intensity / (2 sqrt(ln 2)).
-pub fn gaussian_sigma_from_intensity_fwhm(fwhm: f64) -> f64 {
-    fwhm / (2.0 * (2.0f64.ln()).sqrt())
-}
-
-impl Envelope {
-    /// f(t).
-    #[inline]
-    pub fn value(&self, t: f64) -> f64 {
-        match self {
-            Envelope::Rectangular { start, duration } => {
-                if t >= *start && t < start + duration {
-                    1.0
-                } else {
-                    0.0
-                }
-            }
-            Envelope::Gaussian { center, sigma } => {
-                let x = (t - center) / sigma;
-                (-0.5 * x * x).exp()
-            }
-            Envelope::Sech { center, tau } => {
-                let x = ((t - center) / tau).abs();
-                // sech x = 2 e^{-x} / (1 + e^{-2x}), stable for large x.
-                let e = (-x).exp();
-                2.0 * e / (1.0 + e * e)
-            }
-            Envelope::Sin2 { start, duration } => {
-                let x = (t - start) / duration;
-                if (0.0..=1.0).contains(&x) {
-                    let s = (PI * x).sin();
-                    s * s
-                } else {
-                    0.0
-                }
-            }
-            Envelope::Blackman { start, duration } => {
-                let x = (t - start) / duration;
-                if (0.0..=1.0).contains(&x) {
-                    let (a0, a1, a2) = BLACKMAN;
-                    a0 - a1 * (2.0 * PI * x).cos() + a2 * (4.0 * PI * x).cos()
-                } else {
-                    0.0
-                }
-            }
-            Envelope::Samples { times, values } => sample_interp(times, values, t),
-        }
-    }
-
-    /// The envelope centre t_c (samples: midpoint of first and last sample time).
-    pub fn center(&self) -> f64 {
-        match self {
-            Envelope::Rectangular { start, duration }
-            | Envelope::Sin2 { start, duration }
-            | Envelope::Blackman { start, duration } => start + 0.5 * duration,
-            Envelope::Gaussian { center, .. } | Envelope::Sech { center, .. } => *center,
-            Envelope::Samples { times, .. } => match (times.first(), times.last()) {
-                (Some(a), Some(b)) => 0.5 * (a + b),
-                _ => 0.0,
-            },
-        }
-    }
-
-    /// Integral of f over all t (s). Pulse area = Omega * this.
-    pub fn area(&self) -> f64 {
-        match self {
-            Envelope::Rectangular { duration, .. } => *duration,
-            Envelope::Gaussian { sigma, .. } => sigma * (2.0 * PI).sqrt(),
-            Envelope::Sech { tau, .. } => PI * tau,
-            Envelope::Sin2 { duration, .. } => 0.5 * duration,
-            Envelope::Blackman { duration, .. } => BLACKMAN.0 * duration,
-            Envelope::Samples { times, values } => times
-                .windows(2)
-                .zip(values.windows(2))
-                .map(|(t, v)| 0.5 * (t[1] - t[0]) * (v[0] + v[1]))
-                .sum(),
-        }
-    }
-
-    /// Interval outside which f is zero, or below [`TAIL_CUTOFF`] for
-    /// Gaussian and sech envelopes.
-    pub fn support(&self) -> (f64, f64) {
-        match self {
-            Envelope::Rectangular { start, duration }
-            | Envelope::Sin2 { start, duration }
-            | Envelope::Blackman { start, duration } => (*start, start + duration),
-            Envelope::Gaussian { center, sigma } => {
-                let half = sigma * (-2.0 * TAIL_CUTOFF.ln()).sqrt();
-                (center - half, center + half)
-            }
-            Envelope::Sech { center, tau } => {
-                // sech x < 2 e^{-x} = TAIL_CUTOFF  =>  x = ln(2 / TAIL_CUTOFF)
-                let half = tau * (2.0 / TAIL_CUTOFF).ln();
-                (center - half, center + half)
-            }
-            Envelope::Samples { times, .. } => match (times.first(), times.last()) {
-                (Some(a), Some(b)) => (*a, *b),
-                _ => (0.0, 0.0),
-            },
-        }
-    }
-
-    /// The shortest time scale of the envelope's shape (s): a propagator's
-    /// maximum step is tied to it so that no pulse is stepped over.
-    pub fn shortest_feature(&self) -> f64 {
-        match self {
-            Envelope::Rectangular { duration, .. } => *duration,
-            Envelope::Gaussian { sigma, .. } => *sigma,
-            Envelope::Sech { tau, .. } => *tau,
-            Envelope::Sin2 { duration, .. } | Envelope::Blackman { duration, .. } => duration / 4.0,
-            Envelope::Samples { times, .. } => times
-                .windows(2)
-                .map(|w| w[1] - w[0])
-                .fold(f64::INFINITY, f64::min),
-        }
-    }
-
-    /// True where f is piecewise constant in time (rectangular).
-    pub fn is_piecewise_constant(&self) -> bool {
-        matches!(self, Envelope::Rectangular { .. })
-    }
-
-    /// Times at which f jumps or has a kink (edges of finite envelopes, sample
-    /// times); empty for Gaussian and sech.
-    pub fn breakpoints(&self) -> Vec<f64> {
-        match self {
-            Envelope::Rectangular { start, duration }
-            | Envelope::Sin2 { start, duration }
-            | Envelope::Blackman { start, duration } => vec![*start, start + duration],
-            Envelope::Gaussian { .. } | Envelope::Sech { .. } => Vec::new(),
-            Envelope::Samples { times, .. } => times.clone(),
-        }
-    }
-
-    /// Short name of the shape as written in schemes.
-    pub fn shape_name(&self) -> &'static str {
-        match self {
-            Envelope::Rectangular { .. } => "rectangular",
-            Envelope::Gaussian { .. } => "gaussian",
-            Envelope::Sech { .. } => "sech",
-            Envelope::Sin2 { .. } => "sin2",
-            Envelope::Blackman { .. } => "blackman",
-            Envelope::Samples { .. } => "samples",
-        }
-    }
-}
-
-impl Envelope {
-    /// The same shape stretched in time by `s` about its centre (s > 0).
-    pub fn stretched(&self, s: f64) -> Envelope {
-        let c = self.center();
-        let at = |t: f64| c + s * (t - c);
-        match self {
-            Envelope::Rectangular { start, duration } => Envelope::Rectangular {
-                start: at(*start),
-                duration: duration * s,
-            },
-            Envelope::Sin2 { start, duration } => Envelope::Sin2 {
-                start: at(*start),
-                duration: duration * s,
-            },
-            Envelope::Blackman { start, duration } => Envelope::Blackman {
-                start: at(*start),
-                duration: duration * s,
-            },
-            Envelope::Gaussian { center, sigma } => Envelope::Gaussian {
-                center: *center,
-                sigma: sigma * s,
-            },
-            Envelope::Sech { center, tau } => Envelope::Sech {
-                center: *center,
-                tau: tau * s,
-            },
-            Envelope::Samples { times, values } => Envelope::Samples {
-                times: times.iter().map(|&t| at(t)).collect(),
-                values: values.clone(),
-            },
-        }
-    }
-}
-
-/// Linear interpolation of sampled values, 0 outside [first, last].
-#[inline]
-fn sample_interp(times: &[f64], values: &[f64], t: f64) -> f64 {
-    let n = times.len().min(values.len());
-    if n < 2 || t < times[0] || t > times[n - 1] {
-        return 0.0;
-    }
-    // Index of the first sample time > t (binary search), at least 1.
-    let i = times[..n].partition_point(|&x| x <= t).clamp(1, n - 1);
-    let (t0, t1) = (times[i - 1], times[i]);
-    let (v0, v1) = (values[i - 1], values[i]);
-    let w = if t1 > t0 { (t - t0) / (t1 - t0) } else { 0.0 };
-    v0 + w * (v1 - v0)
-}
-
 impl Model {
     /// Transition angular frequency of a coupling, omega_upper - omega_lower (>= 0).
     pub fn transition_omega(&self, coupling: usize) -> f64 {
@@ -453,73 +217,10 @@ impl Model {
     }
 }
 
-#[cfg(test)]
-mod tests {
-    use super::*;
-    use approx::assert_relative_eq;
-
-    fn integrate(e: &Envelope) -> f64 {
-        let (a, b) = e.support();
-        let (a, b) = (a - 1.0, b + 1.0);
-        let n = 200_000;
-        let h = (b - a) / n as f64;
-        // Trapezoid rule: exact for the piecewise-linear samples envelope
-        // (its kinks fall on grid points), O(h^2) for the smooth shapes.
-        let mut s = 0.5 * (e.value(a) + e.value(b));
-        for i in 1..n {
-            s += e.value(a + i as f64 * h);
-        }
-        s * h
-    }
-
-    // Closed-form areas checked against numerical quadrature
-    // (elementary integrals; common practice, no source).
-    #[test]
-    fn areas_match_quadrature() {
-        let shapes = [
-            Envelope::Gaussian {
-                center: 3.0,
-                sigma: 0.7,
-            },
-            Envelope::Sech {
-                center: -2.0,
-                tau: 0.3,
-            },
-            Envelope::Sin2 {
-                start: 1.0,
-                duration: 2.0,
-            },
-            Envelope::Blackman {
-                start: 0.5,
-                duration: 3.0,
-            },
-            Envelope::Samples {
-                times: vec![0.0, 1.0, 3.0, 4.0],
-                values: vec![0.0, 1.0, 0.5, 0.0],
-            },
-        ];
-        for e in &shapes {
-            assert_relative_eq!(e.area(), integrate(e), max_relative = 1e-6);
-        }
-    }
-
-    // FWHM of a Gaussian's intensity: |f|^2 = 1/2 at t - tc = FWHM/2.
-    #[test]
-    fn gaussian_fwhm_is_of_intensity() {
-        let fwhm = 2.5;
-        let sigma = gaussian_sigma_from_intensity_fwhm(fwhm);
-        let e = Envelope::Gaussian { center: 0.0, sigma };
-        assert_relative_eq!(e.value(fwhm / 2.0).powi(2), 0.5, max_relative = 1e-12);
-    }
-
-    #[test]
-    fn sech_is_stable_far_out() {
-        let e = Envelope::Sech {
-            center: 0.0,
-            tau: 1.0,
-        };
-        assert_relative_eq!(e.value(0.0), 1.0);
-        assert!(e.value(1000.0).is_finite());
-        assert!(e.value(e.support().1) < 1.01 * TAIL_CUTOFF);
-    }
+/// Level and field ids: one or more of letters, digits, `_`, `'`, `+`, `-`.
+pub fn valid_id(id: &str) -> bool {
+    !id.is_empty()
+        && id
+            .chars()
+            .all(|c| c.is_ascii_alphanumeric() || matches!(c, '_' | '\'' | '+' | '-'))
 }

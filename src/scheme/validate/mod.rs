@@ -243,13 +243,7 @@ impl<'a> Ctx<'a> {
     }
 }
 
-/// Level and field ids: one or more of letters, digits, `_`, `'`, `+`, `-`.
-pub fn valid_id(id: &str) -> bool {
-    !id.is_empty()
-        && id
-            .chars()
-            .all(|c| c.is_ascii_alphanumeric() || matches!(c, '_' | '\'' | '+' | '-'))
-}
+pub use crate::model::valid_id;
 
 const ID_RULE: &str = "an id made of letters, digits, _ ' + or -";
 
