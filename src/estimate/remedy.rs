@@ -179,12 +179,7 @@ pub fn remedy(
         _ => None,
     };
 
-    let line_rule = le.order == Order::First
-        && base.chirp == 0.0
-        && matches!(
-            env,
-            Envelope::Rectangular { .. } | Envelope::Sin2 { .. } | Envelope::Blackman { .. }
-        );
+    let line_rule = le.order == Order::First && base.chirp == 0.0 && env.has_oscillating_line();
     let length_rule = if line_rule {
         LengthRule::LineEnvelope
     } else {

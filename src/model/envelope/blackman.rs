@@ -131,6 +131,10 @@ impl Shape for Blackman {
         }
     }
 
+    fn has_oscillating_line(&self) -> bool {
+        true
+    }
+
     fn check(&self) -> Result<(), String> {
         super::finite(self.start, "start")?;
         super::positive(self.duration, "duration")

@@ -88,6 +88,11 @@ pub(crate) trait Shape {
     fn stretched(&self, s: f64) -> super::Envelope;
     /// Parameters finite, lengths positive, samples well formed.
     fn check(&self) -> Result<(), String>;
+    /// Whether the closed-form spectrum oscillates in nu (finite analytic
+    /// shapes: zeros of the line, bounded by [`Shape::spectrum_bound`]).
+    fn has_oscillating_line(&self) -> bool {
+        false
+    }
 }
 
 /// Run `$body` with `$s` bound to the shape struct of `$env`.
@@ -226,6 +231,13 @@ impl Envelope {
     /// a remedy lengthens a pulse.
     pub fn stretched(&self, s: f64) -> Envelope {
         with_shape!(self, shape => shape.stretched(s))
+    }
+
+    /// Whether the closed-form spectrum oscillates (rectangular, sin2,
+    /// Blackman): a remedy then bounds the line by its envelope
+    /// ([`Envelope::spectrum_bound`]) rather than landing in one of its zeros.
+    pub fn has_oscillating_line(&self) -> bool {
+        with_shape!(self, s => s.has_oscillating_line())
     }
 
     /// Parameters finite, durations and widths positive, samples: at least

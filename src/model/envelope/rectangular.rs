@@ -77,6 +77,10 @@ impl Shape for Rectangular {
         }
     }
 
+    fn has_oscillating_line(&self) -> bool {
+        true
+    }
+
     fn check(&self) -> Result<(), String> {
         super::finite(self.start, "start")?;
         super::positive(self.duration, "duration")

@@ -88,6 +88,10 @@ impl Shape for Sin2 {
         }
     }
 
+    fn has_oscillating_line(&self) -> bool {
+        true
+    }
+
     fn check(&self) -> Result<(), String> {
         super::finite(self.start, "start")?;
         super::positive(self.duration, "duration")
