@@ -9,7 +9,7 @@ use estimate_support::{rect, rel, tau, Builder};
 use levelplan::estimate::{
     envelope_spectrum, envelope_spectrum_quadrature, estimate, EstimateError, Order,
 };
-use levelplan::model::{Envelope, Model};
+use levelplan::model::{Envelope, Model, ModelError, Part};
 use num_complex::Complex64 as C;
 
 /// An optical transition frequency (rad/s), illustrative.
@@ -671,23 +671,56 @@ fn counter_rotating_term_is_added_when_rwa_is_off() {
     assert!(rel(p, rwa_only) > 1e-3);
 }
 
-// Bad numbers give a typed error, never NaN or a panic.
+// Bad numbers give a typed error, never NaN or a panic. The model builder
+// refuses such models, so a valid one is broken afterwards, as a caller
+// holding a model might.
 #[test]
 fn bad_models_are_errors_not_nan() {
-    let m = two_level(
-        0.0,
-        tau(1e5),
-        Envelope::Gaussian {
-            center: 0.0,
-            sigma: 0.0,
-        },
-    );
+    let valid = || two_level(0.0, tau(1e5), rect(0.0, 1e-6));
+    let mut m = valid();
+    m.fields[0].envelope = Envelope::Gaussian {
+        center: 0.0,
+        sigma: 0.0,
+    };
     assert!(matches!(estimate(&m), Err(EstimateError::InvalidModel(_))));
-    let m = two_level(0.0, f64::INFINITY, rect(0.0, 1e-6));
+    let mut m = valid();
+    m.drives[0].rabi = f64::INFINITY;
     assert!(matches!(estimate(&m), Err(EstimateError::InvalidModel(_))));
     let m = two_level(0.0, 1e300, rect(0.0, 1e-6));
     assert!(matches!(estimate(&m), Err(EstimateError::NonFinite(_))));
-    let mut m = two_level(0.0, tau(1e5), rect(0.0, 1e-6));
+    let mut m = valid();
     m.initial = vec![1.0];
     assert!(matches!(estimate(&m), Err(EstimateError::InvalidModel(_))));
+}
+
+// The same broken models are refused by the builder with a typed error.
+#[test]
+fn the_builder_refuses_what_the_estimator_would() {
+    let m = valid_parts_with(Envelope::Gaussian {
+        center: 0.0,
+        sigma: 0.0,
+    });
+    assert!(matches!(
+        m,
+        Err(ModelError::Invalid {
+            at: Part::Envelope(0),
+            ..
+        })
+    ));
+}
+
+fn valid_parts_with(env: Envelope) -> Result<Model, ModelError> {
+    let m = two_level(0.0, tau(1e5), rect(0.0, 1e-6));
+    let mut b = Model::builder()
+        .levels(m.levels.clone())
+        .couplings(m.couplings.clone())
+        .drives(m.drives.clone())
+        .initial(m.initial.clone())
+        .window(m.window);
+    for f in &m.fields {
+        let mut f = f.clone();
+        f.envelope = env.clone();
+        b = b.field(f);
+    }
+    b.build()
 }

@@ -253,3 +253,37 @@ fn intensity_fwhm_is_where_the_intensity_halves() {
     let w = intensity_fwhm(&shapes[5]).unwrap();
     assert!(rel(w, 2.0 * (1.0 - 0.5f64.sqrt())) < 1e-12);
 }
+
+// One length per pulse: for a sech pulse, inspect's field length and vet's
+// present length of the remedy are the same number, the intensity FWHM
+// 2 acosh(sqrt 2) tau (sech^2 = 1/2 at half of it; definition, common
+// practice, no source), and the length for tolerance is that length of the
+// stretched pulse.
+#[test]
+fn inspect_and_vet_report_one_sech_length() {
+    use levelplan::report::{inspect, Provenance};
+    let tau_p = 1e-6;
+    let env = Envelope::Sech {
+        center: 0.0,
+        tau: tau_p,
+    };
+    let m = leaky(env, 1e6);
+    let prov = Provenance::new("test", "0");
+    let shown = inspect(&m, prov.clone()).fields[0].length;
+    let rep = levelplan::pipeline::vet_model(&m, prov, None).unwrap();
+    let rm = rep.levels[2]
+        .remedy
+        .as_ref()
+        .expect("a flagged leak has a remedy");
+    assert_eq!(rm.present_length, shown);
+    assert!(rel(shown, 2.0 * 2f64.sqrt().acosh() * tau_p) < 1e-15);
+    let e = Envelope::Sech {
+        center: 0.0,
+        tau: tau_p,
+    };
+    assert!((e.value(shown / 2.0).powi(2) - 0.5).abs() < 1e-12);
+    let r = remedy(&m, 2, m.tolerance).unwrap().unwrap();
+    let stretch = r.stretch.expect("a stretch");
+    let len = r.length_for_tolerance.expect("a length");
+    assert!(rel(len, e.stretched(stretch).length()) < 1e-12);
+}

@@ -131,7 +131,9 @@ fn exact_method_names_why_it_does_not_apply() {
 
 #[test]
 fn non_finite_input_is_an_error_not_a_nan() {
-    let m = two_level(W_E, f64::NAN, 0.0, 1e-7);
+    // The model builder refuses a NaN Rabi frequency: break a valid model.
+    let mut m = two_level(W_E, tau(1e6), 0.0, 1e-7);
+    m.drives[0].rabi = f64::NAN;
     match solve(&m, &SolveOptions::default()) {
         Err(SolveError::NonFinite { stage }) => assert!(
             stage.contains("Rabi frequency of field 'L' on g-e"),

@@ -168,7 +168,7 @@ pub struct Remedy {
     pub blackman_same_span: Option<f64>,
     /// Stretch factor of the pulse (`length_for_tolerance / present length`).
     pub stretch: Option<f64>,
-    /// The present length parameter (s), same definition as
+    /// The present length (s), [`Envelope::length`](crate::model::Envelope::length), same definition as
     /// `length_for_tolerance`.
     pub present_length: f64,
     /// How the length search judged "below tolerance".
@@ -511,48 +511,7 @@ pub(crate) fn check_model(m: &Model) -> Result<(), EstimateError> {
 }
 
 pub(crate) fn check_envelope(e: &Envelope) -> Result<(), String> {
-    let pos = |x: f64, what: &str| {
-        if x.is_finite() && x > 0.0 {
-            Ok(())
-        } else {
-            Err(format!("{what} must be positive and finite, got {x}"))
-        }
-    };
-    let fin = |x: f64, what: &str| {
-        if x.is_finite() {
-            Ok(())
-        } else {
-            Err(format!("{what} must be finite, got {x}"))
-        }
-    };
-    match e {
-        Envelope::Rectangular { start, duration }
-        | Envelope::Sin2 { start, duration }
-        | Envelope::Blackman { start, duration } => {
-            fin(*start, "start")?;
-            pos(*duration, "duration")
-        }
-        Envelope::Gaussian { center, sigma } => {
-            fin(*center, "center")?;
-            pos(*sigma, "sigma")
-        }
-        Envelope::Sech { center, tau } => {
-            fin(*center, "center")?;
-            pos(*tau, "tau")
-        }
-        Envelope::Samples { times, values } => {
-            if times.len() < 2 || times.len() != values.len() {
-                return Err("samples need at least two (time, value) pairs".into());
-            }
-            if times.iter().chain(values).any(|x| !x.is_finite()) {
-                return Err("samples must be finite".into());
-            }
-            if times.windows(2).any(|w| w[1] <= w[0]) {
-                return Err("sample times must increase strictly".into());
-            }
-            Ok(())
-        }
-    }
+    e.check()
 }
 
 /// First- and second-order estimate of every level, and the drives the

@@ -7,12 +7,12 @@
 //! propagators, edit the model (it works through field views), print.
 
 use std::borrow::Cow;
-use std::f64::consts::PI;
 
 use super::spectrum::envelope_spectrum_bound;
 use super::view::FieldView;
 use super::{check_model, contribution, level_estimate, terms, Ctx, EstimateError, Order, Remedy};
-use crate::model::{gaussian_sigma_from_intensity_fwhm, Envelope, Model, BLACKMAN};
+use crate::model::envelope::blackman_fwhm_fraction;
+use crate::model::{gaussian_sigma_from_intensity_fwhm, Envelope, Model};
 
 /// How [`remedy`] decides that a pulse length brings the level below tolerance.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -31,94 +31,11 @@ pub enum LengthRule {
     Exact,
 }
 
-/// Fraction of the total duration of a Blackman window over which its
-/// intensity exceeds half its peak (about 0.2876).
-fn blackman_fwhm_fraction() -> f64 {
-    let (a0, a1, a2) = BLACKMAN;
-    let f = |x: f64| a0 - a1 * (2.0 * PI * x).cos() + a2 * (4.0 * PI * x).cos();
-    let target = std::f64::consts::FRAC_1_SQRT_2;
-    let (mut lo, mut hi) = (0.0, 0.5);
-    for _ in 0..60 {
-        let mid = 0.5 * (lo + hi);
-        if f(mid) < target {
-            lo = mid;
-        } else {
-            hi = mid;
-        }
-    }
-    1.0 - 2.0 * 0.5 * (lo + hi)
-}
-
-/// Full width at half maximum of the intensity `|f|^2` (s): duration for a
-/// rectangle, `2 sqrt(ln 2) sigma` for a Gaussian, `2 acosh(sqrt 2) tau` for
-/// sech, `D (1 - 2 asin(2^{-1/4}) / pi)` for sin2, about `0.2876 D` for
-/// Blackman; for samples, between the outermost crossings of `max|f|/sqrt 2`
-/// (linear interpolation). None for an all-zero or malformed sampled envelope.
+/// Full width at half maximum of the intensity `|f|^2` (s); see
+/// [`Envelope::intensity_fwhm`], which each shape owns. None for an
+/// all-zero or malformed sampled envelope.
 pub fn intensity_fwhm(env: &Envelope) -> Option<f64> {
-    match env {
-        Envelope::Rectangular { duration, .. } => Some(*duration),
-        Envelope::Gaussian { sigma, .. } => Some(2.0 * 2f64.ln().sqrt() * sigma),
-        Envelope::Sech { tau, .. } => Some(2.0 * 2f64.sqrt().acosh() * tau),
-        Envelope::Sin2 { duration, .. } => {
-            Some(duration * (1.0 - 2.0 * (2f64.powf(-0.25)).asin() / PI))
-        }
-        Envelope::Blackman { duration, .. } => Some(duration * blackman_fwhm_fraction()),
-        Envelope::Samples { times, values } => {
-            if times.len() < 2 || times.len() != values.len() {
-                return None;
-            }
-            let peak = values.iter().fold(0.0f64, |m, v| m.max(v.abs()));
-            if peak.partial_cmp(&0.0) != Some(std::cmp::Ordering::Greater) {
-                return None;
-            }
-            let thr = peak * std::f64::consts::FRAC_1_SQRT_2;
-            let cross = |i0: usize, i1: usize| {
-                let (v0, v1) = (values[i0].abs(), values[i1].abs());
-                let w = if v1 != v0 {
-                    (thr - v0) / (v1 - v0)
-                } else {
-                    0.0
-                };
-                times[i0] + w.clamp(0.0, 1.0) * (times[i1] - times[i0])
-            };
-            let first = values.iter().position(|v| v.abs() >= thr)?;
-            let last = values.iter().rposition(|v| v.abs() >= thr)?;
-            let left = if first == 0 {
-                times[0]
-            } else {
-                cross(first - 1, first)
-            };
-            let right = if last + 1 == values.len() {
-                times[last]
-            } else {
-                cross(last + 1, last)
-            };
-            Some(right - left)
-        }
-    }
-}
-
-/// The shape's own length parameter (see [`Remedy::length_for_tolerance`]).
-fn length_parameter(env: &Envelope) -> f64 {
-    match env {
-        Envelope::Rectangular { duration, .. }
-        | Envelope::Sin2 { duration, .. }
-        | Envelope::Blackman { duration, .. } => *duration,
-        Envelope::Gaussian { sigma, .. } => 2.0 * 2f64.ln().sqrt() * sigma,
-        Envelope::Sech { tau, .. } => *tau,
-        Envelope::Samples { times, .. } => match (times.first(), times.last()) {
-            (Some(a), Some(b)) => b - a,
-            _ => 0.0,
-        },
-    }
-}
-
-/// Total duration of a finite envelope.
-fn span(env: &Envelope) -> Option<f64> {
-    match env {
-        Envelope::Gaussian { .. } | Envelope::Sech { .. } => None,
-        e => Some(length_parameter(e)),
-    }
+    env.intensity_fwhm()
 }
 
 /// Population of `level` at its own order with field `field` seen as `view`.
@@ -182,8 +99,9 @@ fn stretched<'a>(base: &FieldView<'a>, s: f64) -> FieldView<'a> {
 ///   s in [1, 1e4] about its centre, at the same area (Omega / s; chirp / s so
 ///   the sweep is kept), the smallest s at which the level falls below
 ///   `tolerance` under [`LengthRule`]; `Some(present length)` if it already
-///   is, None if even 1e4 does not suffice. Reported as the shape's length
-///   parameter (duration, Gaussian intensity FWHM, sech tau, sample span).
+///   is, None if even 1e4 does not suffice. Reported as the shape's one
+///   length, [`Envelope::length`] (duration; intensity FWHM of Gaussian and
+///   sech; sample span), the same number inspect shows.
 ///
 /// Returns None for initial or unreached levels, levels without sources, and
 /// pulses of zero area.
@@ -214,7 +132,7 @@ pub fn remedy(
     let drive = dominant.drive;
     let field = model.drives[drive].field;
     let env = &model.fields[field].envelope;
-    let (Some(fwhm), present_length) = (intensity_fwhm(env), length_parameter(env)) else {
+    let (Some(fwhm), present_length) = (env.intensity_fwhm(), env.length()) else {
         return Ok(None);
     };
     let area = env.area();
@@ -247,7 +165,7 @@ pub fn remedy(
     };
     let blackman_same_area = population_with(&mut ctx, field, v, level)?;
 
-    let blackman_same_span = match span(env) {
+    let blackman_same_span = match env.span() {
         Some(d) if d > 0.0 => {
             let e = Envelope::Blackman {
                 start: tc - d / 2.0,
@@ -261,12 +179,7 @@ pub fn remedy(
         _ => None,
     };
 
-    let line_rule = le.order == Order::First
-        && base.chirp == 0.0
-        && matches!(
-            env,
-            Envelope::Rectangular { .. } | Envelope::Sin2 { .. } | Envelope::Blackman { .. }
-        );
+    let line_rule = le.order == Order::First && base.chirp == 0.0 && env.has_oscillating_line();
     let length_rule = if line_rule {
         LengthRule::LineEnvelope
     } else {

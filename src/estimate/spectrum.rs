@@ -1,7 +1,8 @@
 //! Envelope spectra: the Fourier integrals a first-order estimate is made of.
 //!
-//! Owns: the closed-form transforms of the symmetric envelope shapes
-//! (rectangular, Gaussian, sech, sin2, Blackman), the Filon-type quadrature
+//! Owns: the entry points to the closed-form transforms of the symmetric
+//! envelope shapes (each written beside its shape in `model/envelope/`), the
+//! Filon-type quadrature
 //! for everything else (sampled envelopes, chirped fields, envelopes cut by the
 //! window), and the small exact panel integrals (`phi` functions, the triangle
 //! integrals) that the second-order march shares.
@@ -14,151 +15,31 @@
 //! `nu`. The quadrature integrates `f(t) exp(i [nu (t - t_c) + kappa (t - t_c)^2])`
 //! over an interval of absolute time.
 
-use std::f64::consts::PI;
-
 use num_complex::Complex64 as C;
 
 use super::view::FieldView;
 use super::EstimateError;
-use crate::model::{Envelope, BLACKMAN};
-
-/// sin(x)/x, accurate through x = 0.
-#[inline]
-pub(crate) fn sinc(x: f64) -> f64 {
-    if x.abs() < 1e-4 {
-        1.0 - x * x / 6.0
-    } else {
-        x.sin() / x
-    }
-}
-
-/// sech(x) without overflow.
-#[inline]
-fn sech(x: f64) -> f64 {
-    let e = (-x.abs()).exp();
-    2.0 * e / (1.0 + e * e)
-}
-
-/// `sin(nu D / 2) / (nu - m a)` with `a = 2 pi / D`, stable at `nu = m a`
-/// (there `nu D / 2 = m pi`, so the ratio is `(-1)^m (D/2) sinc((nu - m a) D/2)`).
-#[inline]
-fn sin_over_pole(nu: f64, d: f64, m: i32) -> f64 {
-    let a = 2.0 * PI / d;
-    let x = (nu - f64::from(m) * a) * d / 2.0;
-    let sign = if m.rem_euclid(2) == 0 { 1.0 } else { -1.0 };
-    sign * 0.5 * d * sinc(x)
-}
-
-/// `numerator * sin(nu D/2) / prod_m (nu - m a)` over the poles `m` in
-/// `poles`, pairing the sine with the pole nearest to `nu` so that the
-/// removable singularities cost no precision.
-#[inline]
-fn sine_over_poles(nu: f64, d: f64, poles: &[i32], numerator: f64) -> f64 {
-    let a = 2.0 * PI / d;
-    let nearest = (nu / a).round();
-    let lo = f64::from(*poles.iter().min().unwrap_or(&0));
-    let hi = f64::from(*poles.iter().max().unwrap_or(&0));
-    // The clamp keeps the value integral and inside the pole set.
-    let j = nearest.clamp(lo, hi) as i32;
-    let mut value = numerator * sin_over_pole(nu, d, j);
-    for &m in poles {
-        if m != j {
-            value /= nu - f64::from(m) * a;
-        }
-    }
-    value
-}
-
-/// Coefficients of the Blackman transform numerator
-/// `N(nu) = c4 nu^4 + c2 a^2 nu^2 + c0 a^4` (see [`envelope_spectrum`]).
-fn blackman_numerator() -> (f64, f64, f64) {
-    let (a0, a1, a2) = BLACKMAN;
-    let mut c4 = a0 - a1 + a2;
-    // For the standard coefficients (0.42, 0.5, 0.08) c4 is exactly 0: the
-    // window and its first derivative vanish at the ends. Keep that exact.
-    if c4.abs() < 1e-12 {
-        c4 = 0.0;
-    }
-    (c4, -5.0 * a0 + 4.0 * a1 - a2, 4.0 * a0)
-}
+use crate::model::Envelope;
 
 /// Closed-form spectrum `F(nu) = integral f(t_c + u) e^{i nu u} du` of a
 /// symmetric envelope over all time; `None` for sampled envelopes (and for
-/// parameters that give no finite value, e.g. a zero duration).
+/// parameters that give no finite value, e.g. a zero duration). Each shape's
+/// transform is written in its own file under `model/envelope/`:
 ///
 /// - rectangular, duration D: `D sinc(nu D / 2)`;
 /// - Gaussian, amplitude sigma: `sigma sqrt(2 pi) exp(-nu^2 sigma^2 / 2)`;
 /// - sech, tau: `pi tau sech(pi nu tau / 2)`;
-/// - sin2, duration D (`f = 1/2 + cos(a u)/2` on `|u| < D/2`, `a = 2 pi/D`),
-///   a sum of three shifted rectangle transforms that collapses to
-///   `-a^2 sin(nu D/2) / (nu (nu^2 - a^2))`;
-/// - Blackman, duration D (`f = a0 + a1 cos(a u) + a2 cos(2 a u)`), five
-///   shifted rectangle transforms collapsing to
-///   `2 sin(nu D/2) N(nu) / (nu (nu^2 - a^2)(nu^2 - 4 a^2))` with
-///   `N = (a0 - a1 + a2) nu^4 + (-5 a0 + 4 a1 - a2) a^2 nu^2 + 4 a0 a^4`.
-///
-/// The collapsed forms have no cancellation in the far wings; their removable
-/// singularities are evaluated through `sinc`.
+/// - sin2, duration D: `-a^2 sin(nu D/2) / (nu (nu^2 - a^2))`, `a = 2 pi/D`;
+/// - Blackman, duration D: `2 sin(nu D/2) N(nu) / (nu (nu^2 - a^2)(nu^2 - 4 a^2))`.
 pub fn envelope_spectrum(env: &Envelope, nu: f64) -> Option<f64> {
-    closed_form(env, nu).filter(|f| f.is_finite())
-}
-
-fn closed_form(env: &Envelope, nu: f64) -> Option<f64> {
-    match env {
-        Envelope::Rectangular { duration, .. } => Some(duration * sinc(nu * duration / 2.0)),
-        Envelope::Gaussian { sigma, .. } => {
-            let x = nu * sigma;
-            Some(sigma * (2.0 * PI).sqrt() * (-0.5 * x * x).exp())
-        }
-        Envelope::Sech { tau, .. } => Some(PI * tau * sech(PI * nu * tau / 2.0)),
-        Envelope::Sin2 { duration, .. } => {
-            let a = 2.0 * PI / duration;
-            Some(sine_over_poles(nu, *duration, &[0, 1, -1], -a * a))
-        }
-        Envelope::Blackman { duration, .. } => {
-            let a = 2.0 * PI / duration;
-            let (c4, c2, c0) = blackman_numerator();
-            let n = c4 * nu.powi(4) + c2 * a * a * nu * nu + c0 * a.powi(4);
-            Some(sine_over_poles(nu, *duration, &[0, 1, -1, 2, -2], 2.0 * n))
-        }
-        Envelope::Samples { .. } => None,
-    }
+    env.spectrum(nu).filter(|f| f.is_finite())
 }
 
 /// An upper bound on `|F(nu)|` that follows the *envelope* of an oscillating
 /// line (the sines replaced by 1), capped by the area `integral f`. Exact
 /// `|F|` for the non-oscillating shapes; `None` for samples.
 pub fn envelope_spectrum_bound(env: &Envelope, nu: f64) -> Option<f64> {
-    bound(env, nu).filter(|b| b.is_finite())
-}
-
-fn bound(env: &Envelope, nu: f64) -> Option<f64> {
-    let area = env.area().abs();
-    let nu = nu.abs();
-    let line = match env {
-        Envelope::Rectangular { .. } => 2.0 / nu,
-        Envelope::Sin2 { duration, .. } => {
-            let a = 2.0 * PI / duration;
-            a * a / (nu * (nu * nu - a * a).abs())
-        }
-        Envelope::Blackman { duration, .. } => {
-            let a = 2.0 * PI / duration;
-            let (c4, c2, c0) = blackman_numerator();
-            let n = c4 * nu.powi(4) + c2 * a * a * nu * nu + c0 * a.powi(4);
-            2.0 * n.abs() / (nu * (nu * nu - a * a).abs() * (nu * nu - 4.0 * a * a).abs())
-        }
-        Envelope::Gaussian { .. } | Envelope::Sech { .. } => {
-            return envelope_spectrum(env, nu).map(f64::abs)
-        }
-        Envelope::Samples { .. } => return None,
-    };
-    // At a pole of the line envelope (or nu = 0) `line` is inf or NaN: the
-    // area bound holds there.
-    Some(if line.is_finite() {
-        line.min(area)
-    } else {
-        area
-    })
+    env.spectrum_bound(nu).filter(|b| b.is_finite())
 }
 
 /// `E_j(z) = integral_0^1 s^j e^{z s} ds` for j = 0, 1, 2: series for
@@ -586,40 +467,6 @@ mod tests {
             assert!((a[0] - e0).norm() < 1e-14);
             let e1 = (z.exp() - e0) / z;
             assert!((a[1] - e1).norm() < 1e-13);
-        }
-    }
-
-    // The collapsed sin2 / Blackman forms equal the sums of shifted
-    // rectangle transforms they came from (derivation check, no source).
-    #[test]
-    fn collapsed_forms_equal_sums_of_shifted_rectangles() {
-        let d = 2.0;
-        let a = 2.0 * PI / d;
-        let r = |x: f64| d * sinc(x * d / 2.0);
-        let (a0, a1, a2) = BLACKMAN;
-        for &nu in &[0.0, 0.3, a, 1.5 * a, 2.0 * a, 2.2 * a, 7.3, -11.0, 40.0] {
-            let sin2 = 0.5 * r(nu) + 0.25 * (r(nu + a) + r(nu - a));
-            let s = envelope_spectrum(
-                &Envelope::Sin2 {
-                    start: 0.0,
-                    duration: d,
-                },
-                nu,
-            )
-            .unwrap();
-            assert!((s - sin2).abs() < 1e-13, "sin2 at {nu}: {s} vs {sin2}");
-            let bl = a0 * r(nu)
-                + 0.5 * a1 * (r(nu + a) + r(nu - a))
-                + 0.5 * a2 * (r(nu + 2.0 * a) + r(nu - 2.0 * a));
-            let b = envelope_spectrum(
-                &Envelope::Blackman {
-                    start: 0.0,
-                    duration: d,
-                },
-                nu,
-            )
-            .unwrap();
-            assert!((b - bl).abs() < 1e-13, "blackman at {nu}: {b} vs {bl}");
         }
     }
 }

@@ -2,13 +2,13 @@
 //! drive (transition, wavelength, detuning, Rabi frequency, pulse area,
 //! left out or not) and every field.
 //!
-//! Owns: [`InspectReport`] and its rows, [`envelope_length`]. Must not:
+//! Owns: [`InspectReport`] and its rows. Must not:
 //! propagate or estimate, format numbers.
 
 use super::json_units;
 use super::safety::{safety_notes, SafetyNote};
 use super::{roles, Provenance, Role};
-use crate::model::{Dipole, Envelope, Model};
+use crate::model::{Dipole, Model};
 use crate::units::C;
 use serde::Serialize;
 
@@ -71,7 +71,8 @@ pub struct InspectField {
     /// Envelope shape name.
     #[serde(rename = "envelope")]
     pub shape: String,
-    /// Duration measure (s): see [`envelope_length`].
+    /// Duration measure (s): [`crate::model::Envelope::length`], the one definition
+    /// remedies use too.
     #[serde(rename = "length_s")]
     pub length: f64,
     /// W/m^2
@@ -105,24 +106,6 @@ pub struct InspectReport {
     /// would be a new key, allowed by the contract.
     #[serde(skip)]
     pub safety: Vec<SafetyNote>,
-}
-
-/// The duration measure of an envelope used in remedies: the duration of
-/// finite pulses, the intensity FWHM of Gaussian and sech pulses, the sample span.
-pub fn envelope_length(env: &Envelope) -> f64 {
-    use Envelope::*;
-    match env {
-        Rectangular { duration, .. } | Sin2 { duration, .. } | Blackman { duration, .. } => {
-            *duration
-        }
-        Gaussian { sigma, .. } => 2.0 * (2.0f64.ln()).sqrt() * sigma,
-        // sech^2(x/tau) = 1/2 at x = tau acosh(sqrt 2)
-        Sech { tau, .. } => 2.0 * tau * (2.0f64.sqrt()).acosh(),
-        Samples { times, .. } => match (times.first(), times.last()) {
-            (Some(a), Some(b)) => b - a,
-            _ => 0.0,
-        },
-    }
 }
 
 const TWO_PI: f64 = 2.0 * std::f64::consts::PI;
@@ -178,7 +161,7 @@ pub fn inspect(model: &Model, provenance: Provenance) -> InspectReport {
                 frequency_hz: hz,
                 wavelength: C / hz,
                 shape: f.envelope.shape_name().to_string(),
-                length: envelope_length(&f.envelope),
+                length: f.envelope.length(),
                 peak_intensity: f.peak_intensity,
                 chirp_hz_per_s: f.chirp / TWO_PI,
                 rwa: f.rwa,

@@ -23,9 +23,7 @@ mod safety;
 pub(crate) mod sample;
 mod vet;
 
-pub use inspect::{
-    envelope_length, inspect, InspectDrive, InspectField, InspectLevel, InspectReport,
-};
+pub use inspect::{inspect, InspectDrive, InspectField, InspectLevel, InspectReport};
 pub use provenance::{Provenance, SolverFacts};
 pub use safety::{safety_notes, SafetyNote, SAFETY_INTENSITY};
 pub use vet::{

@@ -72,7 +72,7 @@ pub struct RemedyRow {
     pub field: String,
     pub present_shape: String,
     /// s, the present length parameter of that pulse, same definition as
-    /// `length_for_tolerance` (duration, Gaussian intensity FWHM, sech tau,
+    /// `length_for_tolerance` (duration, Gaussian and sech intensity FWHM,
     /// sample span)
     #[serde(rename = "present_length_s")]
     pub present_length: f64,

@@ -1,5 +1,6 @@
-//! A small builder of `Model` values for the estimator tests (the scheme
-//! parser is written separately; these tests do not depend on it).
+//! A small builder of `Model` values for the estimator tests, ending in the
+//! library's validated `ModelBuilder` (the scheme parser is written
+//! separately; these tests do not depend on it).
 //! Illustrative numbers only.
 
 #![allow(dead_code)]
@@ -15,8 +16,15 @@ pub fn tau(x: f64) -> f64 {
     2.0 * PI * x
 }
 
+/// The parts of a model, kept here until `build` hands them to the
+/// library's `ModelBuilder`.
 pub struct Builder {
-    m: Model,
+    levels: Vec<Level>,
+    couplings: Vec<Coupling>,
+    fields: Vec<Field>,
+    drives: Vec<Drive>,
+    initial: Vec<f64>,
+    solver: SolverSettings,
     window: Option<Window>,
 }
 
@@ -29,34 +37,25 @@ impl Default for Builder {
 impl Builder {
     pub fn new() -> Self {
         Builder {
-            m: Model {
-                title: None,
-                levels: vec![],
-                couplings: vec![],
-                fields: vec![],
-                drives: vec![],
-                initial: vec![],
-                targets: vec![],
-                tolerance: 1e-3,
-                window: Window {
-                    start: 0.0,
-                    end: 0.0,
-                },
-                solver: SolverSettings::default(),
-            },
+            levels: vec![],
+            couplings: vec![],
+            fields: vec![],
+            drives: vec![],
+            initial: vec![],
+            solver: SolverSettings::default(),
             window: None,
         }
     }
 
     fn level_idx(&self, id: &str) -> usize {
-        self.m
-            .level_index(id)
+        self.levels
+            .iter()
+            .position(|l| l.id == id)
             .unwrap_or_else(|| panic!("no level {id}"))
     }
 
     fn field_idx(&self, id: &str) -> usize {
-        self.m
-            .fields
+        self.fields
             .iter()
             .position(|f| f.id == id)
             .unwrap_or_else(|| panic!("no field {id}"))
@@ -64,33 +63,33 @@ impl Builder {
 
     /// A level with energy E/hbar = omega (rad/s).
     pub fn level(mut self, id: &str, omega: f64) -> Self {
-        self.m.levels.push(Level {
+        self.levels.push(Level {
             id: id.into(),
             label: None,
             omega,
             gamma: 0.0,
             tolerance: None,
         });
-        self.m.initial.push(0.0);
+        self.initial.push(0.0);
         self
     }
 
     /// Initial population of a level.
     pub fn initial(mut self, id: &str, p: f64) -> Self {
         let i = self.level_idx(id);
-        self.m.initial[i] = p;
+        self.initial[i] = p;
         self
     }
 
     /// A coupling (ordered by energy).
     pub fn coupling(mut self, a: &str, b: &str) -> Self {
         let (ia, ib) = (self.level_idx(a), self.level_idx(b));
-        let (lower, upper) = if self.m.levels[ia].omega <= self.m.levels[ib].omega {
+        let (lower, upper) = if self.levels[ia].omega <= self.levels[ib].omega {
             (ia, ib)
         } else {
             (ib, ia)
         };
-        self.m.couplings.push(Coupling {
+        self.couplings.push(Coupling {
             lower,
             upper,
             dipole: Dipole::Relative(1.0),
@@ -100,7 +99,7 @@ impl Builder {
 
     /// A field with carrier omega_L (rad/s), no chirp, phase 0, RWA.
     pub fn field(mut self, id: &str, omega: f64, envelope: Envelope) -> Self {
-        self.m.fields.push(Field {
+        self.fields.push(Field {
             id: id.into(),
             omega,
             envelope,
@@ -115,25 +114,25 @@ impl Builder {
     /// A field tuned by `detuning` (rad/s) from the a-b transition.
     pub fn tuned(self, id: &str, a: &str, b: &str, detuning: f64, envelope: Envelope) -> Self {
         let (ia, ib) = (self.level_idx(a), self.level_idx(b));
-        let w = (self.m.levels[ia].omega - self.m.levels[ib].omega).abs();
+        let w = (self.levels[ia].omega - self.levels[ib].omega).abs();
         self.field(id, w + detuning, envelope)
     }
 
     pub fn phase(mut self, field: &str, phase: f64) -> Self {
         let i = self.field_idx(field);
-        self.m.fields[i].phase = phase;
+        self.fields[i].phase = phase;
         self
     }
 
     pub fn chirp(mut self, field: &str, chirp: f64) -> Self {
         let i = self.field_idx(field);
-        self.m.fields[i].chirp = chirp;
+        self.fields[i].chirp = chirp;
         self
     }
 
     pub fn no_rwa(mut self, field: &str) -> Self {
         let i = self.field_idx(field);
-        self.m.fields[i].rwa = false;
+        self.fields[i].rwa = false;
         self
     }
 
@@ -143,12 +142,11 @@ impl Builder {
         let f = self.field_idx(field);
         let (ia, ib) = (self.level_idx(a), self.level_idx(b));
         let c = self
-            .m
             .couplings
             .iter()
             .position(|c| (c.lower == ia && c.upper == ib) || (c.lower == ib && c.upper == ia))
             .unwrap_or_else(|| panic!("no coupling {a}-{b}"));
-        self.m.drives.push(Drive {
+        self.drives.push(Drive {
             field: f,
             coupling: c,
             rabi,
@@ -162,24 +160,27 @@ impl Builder {
     }
 
     pub fn cutoff(mut self, c: f64) -> Self {
-        self.m.solver.detuning_cutoff = c;
+        self.solver.detuning_cutoff = c;
         self
     }
 
-    /// The model; the default window spans every envelope's support.
-    pub fn build(mut self) -> Model {
-        self.m.window = self.window.unwrap_or_else(|| {
-            let (a, b) =
-                self.m
-                    .fields
-                    .iter()
-                    .fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), f| {
-                        let (s, e) = f.envelope.support();
-                        (a.min(s), b.max(e))
-                    });
-            Window { start: a, end: b }
-        });
-        self.m
+    /// The model, checked by the library's builder (panics on a broken one:
+    /// a mistake in the test); the default window spans every envelope's
+    /// support, and the default tolerance is 1e-3.
+    pub fn build(self) -> Model {
+        let mut b = Model::builder()
+            .levels(self.levels)
+            .couplings(self.couplings)
+            .fields(self.fields)
+            .drives(self.drives)
+            .initial(self.initial)
+            .tolerance(1e-3)
+            .solver(self.solver);
+        if let Some(w) = self.window {
+            b = b.window(w);
+        }
+        b.build()
+            .unwrap_or_else(|e| panic!("test model refused: {e}"))
     }
 }
 

@@ -1,11 +1,11 @@
-//! Test helper: builds validated-looking `Model` values directly in Rust, so the
-//! propagation tests do not depend on the scheme parser. All numbers are
+//! Test helper: builds `Model` values directly in Rust through the library's
+//! validated `ModelBuilder`, so the propagation tests do not depend on the
+//! scheme parser. All numbers are
 //! invented, illustrative values (SI, angular frequencies).
 #![allow(dead_code)]
 
 use levelplan::model::{
     Coupling, Dipole, Drive, Envelope, Field, Level, Method, Model, SolverSettings, Window,
-    DEFAULT_TOLERANCE,
 };
 use std::f64::consts::PI;
 
@@ -14,8 +14,16 @@ pub fn tau(x: f64) -> f64 {
     2.0 * PI * x
 }
 
+/// The parts of a model, kept here until `build` hands them to the
+/// library's `ModelBuilder`.
 pub struct Builder {
-    m: Model,
+    levels: Vec<Level>,
+    couplings: Vec<Coupling>,
+    fields: Vec<Field>,
+    drives: Vec<Drive>,
+    initial: Vec<f64>,
+    window: Window,
+    solver: SolverSettings,
 }
 
 impl Default for Builder {
@@ -27,52 +35,48 @@ impl Default for Builder {
 impl Builder {
     pub fn new() -> Self {
         Builder {
-            m: Model {
-                title: None,
-                levels: Vec::new(),
-                couplings: Vec::new(),
-                fields: Vec::new(),
-                drives: Vec::new(),
-                initial: Vec::new(),
-                targets: Vec::new(),
-                tolerance: DEFAULT_TOLERANCE,
-                window: Window {
-                    start: 0.0,
-                    end: 1.0,
-                },
-                solver: SolverSettings::default(),
+            levels: Vec::new(),
+            couplings: Vec::new(),
+            fields: Vec::new(),
+            drives: Vec::new(),
+            initial: Vec::new(),
+            window: Window {
+                start: 0.0,
+                end: 1.0,
             },
+            solver: SolverSettings::default(),
         }
     }
 
     /// A level with energy omega (rad/s) and decay rate gamma (1/s).
     pub fn level(mut self, id: &str, omega: f64, gamma: f64) -> Self {
-        self.m.levels.push(Level {
+        self.levels.push(Level {
             id: id.into(),
             label: None,
             omega,
             gamma,
             tolerance: None,
         });
-        self.m.initial.push(0.0);
+        self.initial.push(0.0);
         self
     }
 
     fn idx(&self, id: &str) -> usize {
-        self.m
-            .level_index(id)
+        self.levels
+            .iter()
+            .position(|l| l.id == id)
             .unwrap_or_else(|| panic!("no level {id}"))
     }
 
     /// A coupling (ordered by energy).
     pub fn coupling(mut self, a: &str, b: &str) -> Self {
         let (i, j) = (self.idx(a), self.idx(b));
-        let (lower, upper) = if self.m.levels[i].omega <= self.m.levels[j].omega {
+        let (lower, upper) = if self.levels[i].omega <= self.levels[j].omega {
             (i, j)
         } else {
             (j, i)
         };
-        self.m.couplings.push(Coupling {
+        self.couplings.push(Coupling {
             lower,
             upper,
             dipole: Dipole::Relative(1.0),
@@ -90,7 +94,7 @@ impl Builder {
         phase: f64,
         rwa: bool,
     ) -> Self {
-        self.m.fields.push(Field {
+        self.fields.push(Field {
             id: id.into(),
             omega: omega_l,
             envelope,
@@ -108,7 +112,7 @@ impl Builder {
 
     /// A field tuned with detuning delta (rad/s) from the a-b transition.
     pub fn field_tuned(self, id: &str, a: &str, b: &str, delta: f64, envelope: Envelope) -> Self {
-        let w = (self.m.levels[self.idx(a)].omega - self.m.levels[self.idx(b)].omega).abs();
+        let w = (self.levels[self.idx(a)].omega - self.levels[self.idx(b)].omega).abs();
         self.field(id, w + delta, envelope)
     }
 
@@ -116,13 +120,12 @@ impl Builder {
     pub fn drive(mut self, f: &str, a: &str, b: &str, rabi: f64) -> Self {
         let (i, j) = (self.idx(a), self.idx(b));
         let coupling = self
-            .m
             .couplings
             .iter()
             .position(|c| (c.lower == i && c.upper == j) || (c.lower == j && c.upper == i))
             .unwrap_or_else(|| panic!("no coupling {a}-{b}"));
-        let field = self.m.fields.iter().position(|x| x.id == f).expect("field");
-        self.m.drives.push(Drive {
+        let field = self.fields.iter().position(|x| x.id == f).expect("field");
+        self.drives.push(Drive {
             field,
             coupling,
             rabi,
@@ -132,34 +135,45 @@ impl Builder {
 
     pub fn initial(mut self, id: &str) -> Self {
         let i = self.idx(id);
-        self.m.initial.iter_mut().for_each(|p| *p = 0.0);
-        self.m.initial[i] = 1.0;
+        self.initial.iter_mut().for_each(|p| *p = 0.0);
+        self.initial[i] = 1.0;
         self
     }
 
     pub fn window(mut self, start: f64, end: f64) -> Self {
-        self.m.window = Window { start, end };
+        self.window = Window { start, end };
         self
     }
 
     pub fn method(mut self, m: Method) -> Self {
-        self.m.solver.method = m;
+        self.solver.method = m;
         self
     }
 
     pub fn tolerances(mut self, rtol: f64, atol: f64) -> Self {
-        self.m.solver.rtol = rtol;
-        self.m.solver.atol = atol;
+        self.solver.rtol = rtol;
+        self.solver.atol = atol;
         self
     }
 
     pub fn cutoff(mut self, c: f64) -> Self {
-        self.m.solver.detuning_cutoff = c;
+        self.solver.detuning_cutoff = c;
         self
     }
 
+    /// The model, checked by the library's builder (panics on a broken one:
+    /// a mistake in the test).
     pub fn build(self) -> Model {
-        self.m
+        Model::builder()
+            .levels(self.levels)
+            .couplings(self.couplings)
+            .fields(self.fields)
+            .drives(self.drives)
+            .initial(self.initial)
+            .window(self.window)
+            .solver(self.solver)
+            .build()
+            .unwrap_or_else(|e| panic!("test model refused: {e}"))
     }
 }
 

@@ -1,0 +1,226 @@
+//! The validated, unit-free model of a scheme.
+//!
+//! Owns: the plain data every later stage works from (levels, couplings, fields,
+//! drives, window, solver settings), the envelope shapes (`envelope/`, one
+//! file per shape), the field physics (`field.rs`: Rabi frequencies from
+//! intensity, area and dipole) and the validated builder (`builder.rs`).
+//! Everything here is SI with *angular* frequencies (rad/s), energies as
+//! angular frequencies E/hbar, times in seconds.
+//!
+//! Must not: know about YAML, strings with units, files, or output formats.
+//! A [`Model`] is built by `scheme` validation or by [`ModelBuilder`], which
+//! both end in the builder's checks; it is immutable afterwards except
+//! through the explicit setters the scan module uses, which re-run no
+//! validation and therefore only change plain numbers.
+
+mod builder;
+pub mod envelope;
+mod field;
+
+pub use builder::{ModelBuilder, ModelError, Part, POPULATION_SUM_TOLERANCE};
+pub use envelope::{
+    gaussian_sigma_from_intensity_fwhm, sech_intensity_fwhm, Envelope, BLACKMAN, TAIL_CUTOFF,
+};
+pub use field::{
+    intensity_from_rabi, rabi_by_dipole_ratio, rabi_from_area, rabi_from_intensity, Field,
+};
+
+use std::f64::consts::PI;
+
+/// A validated scheme: SI numbers only.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Model {
+    /// Free text title from the scheme, if any.
+    pub title: Option<String>,
+    /// Levels in file order.
+    pub levels: Vec<Level>,
+    /// Dipole couplings in file order.
+    pub couplings: Vec<Coupling>,
+    /// Fields in file order.
+    pub fields: Vec<Field>,
+    /// Every (field, coupling) pair the field drives, in field order then
+    /// coupling order. Includes drives that a later stage may leave out by
+    /// the detuning cutoff.
+    pub drives: Vec<Drive>,
+    /// Initial population of each level (same length as `levels`, sums to 1).
+    /// Initial amplitudes are `sqrt(p)` with phase 0.
+    pub initial: Vec<f64>,
+    /// Indices of target levels.
+    pub targets: Vec<usize>,
+    /// Default spectator tolerance (population).
+    pub tolerance: f64,
+    /// Time window of the dynamics.
+    pub window: Window,
+    /// Solver settings.
+    pub solver: SolverSettings,
+}
+
+/// One level.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Level {
+    pub id: String,
+    pub label: Option<String>,
+    /// Energy as an angular frequency, E/hbar (rad/s).
+    pub omega: f64,
+    /// Population decay rate Gamma (1/s); 0 for a stable level.
+    pub gamma: f64,
+    /// Per-level leakage tolerance (population), overriding the default.
+    pub tolerance: Option<f64>,
+}
+
+/// Strength of a coupling's dipole.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum Dipole {
+    /// Projection of the transition dipole on the field polarisation, C m (signed).
+    Absolute(f64),
+    /// A bare relative strength; only usable with fields set by Rabi frequency or area.
+    Relative(f64),
+}
+
+impl Dipole {
+    /// The signed number, whatever its kind.
+    pub fn value(&self) -> f64 {
+        match self {
+            Dipole::Absolute(v) | Dipole::Relative(v) => *v,
+        }
+    }
+}
+
+/// A dipole coupling between two levels.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Coupling {
+    /// Index of the lower level (lower energy; file order breaks ties).
+    pub lower: usize,
+    /// Index of the upper level.
+    pub upper: usize,
+    pub dipole: Dipole,
+}
+
+/// One field acting on one coupling.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Drive {
+    /// Index into `Model::fields`.
+    pub field: usize,
+    /// Index into `Model::couplings`.
+    pub coupling: usize,
+    /// Peak Rabi frequency Omega = d E0 / hbar (rad/s), signed like the dipole.
+    pub rabi: f64,
+}
+
+/// The time window of the dynamics.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Window {
+    pub start: f64,
+    pub end: f64,
+}
+
+impl Window {
+    pub fn duration(&self) -> f64 {
+        self.end - self.start
+    }
+}
+
+/// Which propagator to use.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Method {
+    /// Exact where the frame Hamiltonian is piecewise constant, else adaptive.
+    Auto,
+    Adaptive,
+    Exact,
+}
+
+/// Solver settings (validated).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct SolverSettings {
+    pub rtol: f64,
+    pub atol: f64,
+    pub method: Method,
+    /// Drives with |detuning| above this (rad/s) are left out of the dynamics.
+    pub detuning_cutoff: f64,
+}
+
+/// Default relative tolerance of the adaptive propagator.
+pub const DEFAULT_RTOL: f64 = 1e-10;
+/// Default absolute tolerance of the adaptive propagator.
+pub const DEFAULT_ATOL: f64 = 1e-12;
+/// Default detuning cutoff, 1 THz cyclic, as an angular frequency.
+pub const DEFAULT_DETUNING_CUTOFF: f64 = 2.0 * PI * 1e12;
+/// Default spectator tolerance.
+pub const DEFAULT_TOLERANCE: f64 = 1e-3;
+
+impl Default for SolverSettings {
+    fn default() -> Self {
+        SolverSettings {
+            rtol: DEFAULT_RTOL,
+            atol: DEFAULT_ATOL,
+            method: Method::Auto,
+            detuning_cutoff: DEFAULT_DETUNING_CUTOFF,
+        }
+    }
+}
+
+impl Model {
+    /// Transition angular frequency of a coupling, omega_upper - omega_lower (>= 0).
+    pub fn transition_omega(&self, coupling: usize) -> f64 {
+        let c = &self.couplings[coupling];
+        self.levels[c.upper].omega - self.levels[c.lower].omega
+    }
+
+    /// Detuning Delta = omega_L - omega_ab of a drive (rad/s), at the envelope centre.
+    pub fn detuning(&self, drive: &Drive) -> f64 {
+        self.fields[drive.field].omega - self.transition_omega(drive.coupling)
+    }
+
+    /// Pulse area Omega * integral f dt of a drive (rad).
+    pub fn pulse_area(&self, drive: &Drive) -> f64 {
+        drive.rabi * self.fields[drive.field].envelope.area()
+    }
+
+    /// Whether a drive is in the dynamics: |detuning| <= detuning cutoff.
+    /// Drives beyond the cutoff are left out of the propagation and listed
+    /// in reports with their perturbative estimate.
+    pub fn drive_included(&self, drive: &Drive) -> bool {
+        self.detuning(drive).abs() <= self.solver.detuning_cutoff
+    }
+
+    /// Tolerance of a level (its own or the default).
+    pub fn tolerance_of(&self, level: usize) -> f64 {
+        self.levels[level].tolerance.unwrap_or(self.tolerance)
+    }
+
+    /// A copy with field `field`'s envelope replaced by `env` and its chirp
+    /// multiplied by `chirp_scale`; every drive of that field keeps its pulse
+    /// area (its Rabi frequency is rescaled), and the window is widened to
+    /// hold the new envelope. Used to check remedies by exact propagation.
+    pub fn with_field_envelope(&self, field: usize, env: Envelope, chirp_scale: f64) -> Model {
+        let mut m = self.clone();
+        let old = m.fields[field].envelope.area();
+        let new = env.area();
+        let factor = if new != 0.0 { old / new } else { 0.0 };
+        let (a, b) = env.support();
+        m.window.start = m.window.start.min(a);
+        m.window.end = m.window.end.max(b);
+        m.fields[field].envelope = env;
+        m.fields[field].chirp *= chirp_scale;
+        if let Some(i) = m.fields[field].peak_intensity.as_mut() {
+            *i *= factor * factor;
+        }
+        for d in m.drives.iter_mut().filter(|d| d.field == field) {
+            d.rabi *= factor;
+        }
+        m
+    }
+
+    /// Index of a level by id.
+    pub fn level_index(&self, id: &str) -> Option<usize> {
+        self.levels.iter().position(|l| l.id == id)
+    }
+}
+
+/// Level and field ids: one or more of letters, digits, `_`, `'`, `+`, `-`.
+pub fn valid_id(id: &str) -> bool {
+    !id.is_empty()
+        && id
+            .chars()
+            .all(|c| c.is_ascii_alphanumeric() || matches!(c, '_' | '\'' | '+' | '-'))
+}

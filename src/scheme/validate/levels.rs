@@ -1,0 +1,171 @@
+//! Levels, and references to them from elsewhere in the file.
+//!
+//! Owns: the `levels:` map (ids, energies, lifetime or linewidth, per-level
+//! tolerance, labels) and [`Levels`], which resolves a level id or a pair
+//! `[a, b]` of ids for the other concerns. Must not: know of couplings,
+//! fields or drives.
+
+use std::collections::HashMap;
+
+use super::super::locate::KeyPath;
+use super::super::raw::{Id, RawScheme};
+use super::super::MAX_LEVELS;
+use super::ctx::{Ctx, Sign};
+use super::{first_valid_id, id_list};
+use crate::model::Level;
+use crate::units::Kind;
+
+/// The levels as far as they validated.
+pub(super) struct Levels {
+    pub list: Vec<Level>,
+    /// Whether each level's energy is known (derived checks skip the others).
+    pub energy_ok: Vec<bool>,
+    index: HashMap<String, usize>,
+    ids: Vec<String>,
+}
+
+impl Levels {
+    /// A level reference inside a list: its index, or a message.
+    pub fn lookup(&self, ctx: &mut Ctx, path: &KeyPath, id: &Id) -> Option<usize> {
+        match self.index.get(&id.0) {
+            Some(&i) => Some(i),
+            None => {
+                ctx.push(
+                    path,
+                    format!("a level id ({})", id_list(&self.ids)),
+                    format!("'{}' (no such level)", id.0),
+                );
+                None
+            }
+        }
+    }
+
+    /// A pair [a, b] of two distinct known levels.
+    pub fn pair(
+        &self,
+        ctx: &mut Ctx,
+        path: &KeyPath,
+        ids: &Option<Vec<Id>>,
+    ) -> Option<(usize, usize)> {
+        let Some(ids) = ids else {
+            ctx.missing(path, "a pair of level ids [a, b]");
+            return None;
+        };
+        if ids.len() != 2 {
+            ctx.push(
+                path,
+                "a pair of level ids [a, b]",
+                format!("a list of {} ids", ids.len()),
+            );
+            return None;
+        }
+        let a = self.lookup(ctx, &path.i(0), &ids[0]);
+        let b = self.lookup(ctx, &path.i(1), &ids[1]);
+        let (a, b) = (a?, b?);
+        if a == b {
+            ctx.push(
+                path,
+                "two different levels",
+                format!("[{0}, {0}] (the same level twice)", ids[0].0),
+            );
+            return None;
+        }
+        Some((a, b))
+    }
+
+    /// The level ids in file order.
+    pub fn ids(&self) -> &[String] {
+        &self.ids
+    }
+}
+
+/// The `levels:` map; None (with a message) when it is missing, empty or
+/// too long, since nothing else can be checked without levels.
+pub(super) fn levels(raw: &RawScheme, ctx: &mut Ctx) -> Option<Levels> {
+    let lp = KeyPath::root().k("levels");
+    let raw_levels: &[(Id, Option<super::super::raw::RawLevel>)] =
+        raw.levels.as_ref().map(|o| &o.0[..]).unwrap_or(&[]);
+    if raw_levels.is_empty() {
+        let found = if raw.levels.is_none() {
+            "nothing (the key is missing)"
+        } else {
+            "an empty level list"
+        };
+        ctx.push(
+            &lp,
+            "at least one level (a map of id: {energy: ...})",
+            found,
+        );
+        return None;
+    }
+    if !ctx.within(&lp, raw_levels.len(), MAX_LEVELS, "levels", "levels") {
+        return None;
+    }
+    let mut out = Levels {
+        list: Vec::new(),
+        energy_ok: Vec::new(),
+        index: HashMap::new(),
+        ids: Vec::new(),
+    };
+    let mut seen_count: HashMap<String, usize> = HashMap::new();
+    for (id, lvl) in raw_levels {
+        let id = &id.0;
+        let path = lp.k(id);
+        if !first_valid_id(ctx, &mut seen_count, &path, id, "level") {
+            continue;
+        }
+        let (level, ok) = level(ctx, id, lvl.as_ref(), &path);
+        out.index.insert(id.clone(), out.list.len());
+        out.list.push(level);
+        out.energy_ok.push(ok);
+    }
+    out.ids = out.list.iter().map(|l| l.id.clone()).collect();
+    Some(out)
+}
+
+/// One level; the flag tells whether its energy is known.
+fn level(
+    ctx: &mut Ctx,
+    id: &str,
+    lvl: Option<&super::super::raw::RawLevel>,
+    path: &KeyPath,
+) -> (Level, bool) {
+    let mut level = Level {
+        id: id.to_string(),
+        label: None,
+        omega: 0.0,
+        gamma: 0.0,
+        tolerance: None,
+    };
+    let mut ok = false;
+    let Some(l) = lvl else {
+        ctx.missing(&path.k("energy"), Kind::Energy.expected());
+        return (level, ok);
+    };
+    if let Some(e) = ctx.req_quantity(&path.k("energy"), &l.energy, Kind::Energy, Sign::Any) {
+        level.omega = e;
+        ok = true;
+    }
+    if l.lifetime.is_some() && l.linewidth.is_some() {
+        ctx.push(
+            &path.k("linewidth"),
+            "either lifetime or linewidth, not both",
+            "both",
+        );
+    } else if let Some(tau) =
+        ctx.quantity(&path.k("lifetime"), &l.lifetime, Kind::Time, Sign::Positive)
+    {
+        level.gamma = 1.0 / tau;
+    } else if let Some(g) = ctx.quantity(
+        &path.k("linewidth"),
+        &l.linewidth,
+        Kind::Frequency,
+        Sign::NonNegative,
+    ) {
+        // Gamma/2pi written in Hz units: the parser already gives 2 pi x value.
+        level.gamma = g;
+    }
+    level.tolerance = ctx.population(&path.k("tolerance"), &l.tolerance);
+    level.label = l.label.as_ref().map(|s| s.text());
+    (level, ok)
+}
