@@ -253,19 +253,26 @@ fn field_phase_poly(model: &Model, field: usize, t0: f64) -> (f64, f64, f64) {
     (p0, f.omega + f.chirp * (t0 - tc), f.chirp)
 }
 
-impl FrameHamiltonian {
-    /// Assemble the frame Hamiltonian of a model.
-    pub fn build(model: &Model) -> Result<Self, AssemblyError> {
-        check_model(model)?;
+/// The rotating frame of every level, grown along a spanning forest of the
+/// included drives: roots in order of initial population (largest first),
+/// then Prim's walk taking the strongest drive to an unvisited level. Each
+/// level's frame phase is varphi = A + B' tau + C tau^2/2 with the detuning
+/// omega - B' kept directly (small numbers only).
+struct Forest {
+    phase0: Vec<f64>,
+    detuning: Vec<f64>,
+    /// C_k.
+    curvature: Vec<f64>,
+    root_of: Vec<usize>,
+    via: Vec<Option<usize>>,
+    /// Drives on the tree, in the order they were taken.
+    tree: Vec<usize>,
+    on_tree: Vec<bool>,
+}
+
+impl Forest {
+    fn grow(model: &Model, included: &[usize], t0: f64) -> Forest {
         let n = model.levels.len();
-        let t0 = model.window.start;
-        let duration = model.window.duration();
-
-        let (included, excluded): (Vec<usize>, Vec<usize>) =
-            (0..model.drives.len()).partition(|&i| model.drive_included(&model.drives[i]));
-
-        // Spanning forest: roots in order of initial population (largest first),
-        // then Prim's walk taking the strongest drive to an unvisited level.
         let mut roots: Vec<usize> = (0..n).collect();
         roots.sort_by(|&a, &b| {
             model.initial[b]
@@ -273,150 +280,173 @@ impl FrameHamiltonian {
                 .then(a.cmp(&b))
         });
         let mut visited = vec![false; n];
-        // Frame phase polynomial per level: varphi = A + B' tau + C tau^2/2 with
-        // detuning = omega - B' kept directly (small numbers only).
-        let mut phase0 = vec![0.0f64; n];
-        let mut detuning = vec![0.0f64; n];
-        let mut curvature = vec![0.0f64; n]; // C_k
-        let mut root_of = (0..n).collect::<Vec<_>>();
-        let mut via = vec![None; n];
-        let mut tree = Vec::new();
-        let mut on_tree = vec![false; model.drives.len()];
+        let mut fr = Forest {
+            phase0: vec![0.0f64; n],
+            detuning: vec![0.0f64; n],
+            curvature: vec![0.0f64; n],
+            root_of: (0..n).collect::<Vec<_>>(),
+            via: vec![None; n],
+            tree: Vec::new(),
+            on_tree: vec![false; model.drives.len()],
+        };
         for &root in &roots {
             if visited[root] {
                 continue;
             }
             visited[root] = true;
-            loop {
-                // Strongest included drive with exactly one visited end.
-                let mut best: Option<usize> = None;
-                for &i in &included {
-                    let c = &model.couplings[model.drives[i].coupling];
-                    if visited[c.lower] != visited[c.upper]
-                        && best
-                            .is_none_or(|b| model.drives[i].rabi.abs() > model.drives[b].rabi.abs())
-                    {
-                        best = Some(i);
-                    }
-                }
-                let Some(i) = best else { break };
+            // Strongest included drive with exactly one visited end, until none.
+            while let Some(i) = strongest_edge(model, included, &visited) {
                 let d = &model.drives[i];
                 let c = &model.couplings[d.coupling];
-                let delta = model.detuning(d);
                 let f = &model.fields[d.field];
                 let (p0, _, chirp) = field_phase_poly(model, d.field, t0);
-                let shift = delta + f.chirp * (t0 - f.envelope.center());
-                if visited[c.lower] {
-                    let (a, b) = (c.lower, c.upper);
-                    phase0[b] = (phase0[a] + p0).rem_euclid(TAU);
-                    detuning[b] = detuning[a] - shift;
-                    curvature[b] = curvature[a] + chirp;
-                    root_of[b] = root_of[a];
-                    via[b] = Some(i);
-                    visited[b] = true;
+                let shift = model.detuning(d) + f.chirp * (t0 - f.envelope.center());
+                // The new level b is reached from the visited level a.
+                let (a, b, sign) = if visited[c.lower] {
+                    (c.lower, c.upper, 1.0)
                 } else {
-                    let (a, b) = (c.lower, c.upper);
-                    phase0[a] = (phase0[b] - p0).rem_euclid(TAU);
-                    detuning[a] = detuning[b] + shift;
-                    curvature[a] = curvature[b] - chirp;
-                    root_of[a] = root_of[b];
-                    via[a] = Some(i);
-                    visited[a] = true;
-                }
-                on_tree[i] = true;
-                tree.push(i);
+                    (c.upper, c.lower, -1.0)
+                };
+                fr.phase0[b] = (fr.phase0[a] + sign * p0).rem_euclid(TAU);
+                fr.detuning[b] = fr.detuning[a] - sign * shift;
+                fr.curvature[b] = fr.curvature[a] + sign * chirp;
+                fr.root_of[b] = fr.root_of[a];
+                fr.via[b] = Some(i);
+                visited[b] = true;
+                fr.on_tree[i] = true;
+                fr.tree.push(i);
             }
         }
+        fr
+    }
+}
 
+/// The strongest included drive with exactly one visited end.
+fn strongest_edge(model: &Model, included: &[usize], visited: &[bool]) -> Option<usize> {
+    let mut best: Option<usize> = None;
+    for &i in included {
+        let c = &model.couplings[model.drives[i].coupling];
+        if visited[c.lower] != visited[c.upper]
+            && best.is_none_or(|b| model.drives[i].rabi.abs() > model.drives[b].rabi.abs())
+        {
+            best = Some(i);
+        }
+    }
+    best
+}
+
+/// The terms of the included drives in the frame of the forest.
+fn drive_terms(
+    model: &Model,
+    included: &[usize],
+    fr: &Forest,
+    t0: f64,
+    duration: f64,
+) -> Vec<Term> {
+    let mut terms = Vec::new();
+    for &i in included {
+        let d = &model.drives[i];
+        let c = &model.couplings[d.coupling];
+        let (a, b) = (c.lower, c.upper);
+        let f = &model.fields[d.field];
+        let (p0, p1, p2) = field_phase_poly(model, d.field, t0);
+        let shift = model.detuning(d) + f.chirp * (t0 - f.envelope.center());
+        let dphase0 = fr.phase0[b] - fr.phase0[a];
+        let dcurv = fr.curvature[b] - fr.curvature[a];
+        let ddet = fr.detuning[b] - fr.detuning[a];
+        let half = 0.5 * d.rabi;
+        // Co-rotating: rho = phi - (varphi_b - varphi_a).
+        if fr.on_tree[i] {
+            terms.push(Term {
+                drive: i,
+                field: d.field,
+                lower: a,
+                upper: b,
+                coupling: Complex64::new(half, 0.0),
+                rotation: Rotation::CoRotating,
+                residual: None,
+                on_tree: true,
+            });
+        } else {
+            let (rho0, rate, sweep) = (p0 - dphase0, shift + ddet, p2 - dcurv);
+            terms.push(make_term(
+                i,
+                d.field,
+                a,
+                b,
+                half,
+                rho0,
+                rate,
+                sweep,
+                duration,
+                Rotation::CoRotating,
+            ));
+        }
+        if !f.rwa {
+            // Counter-rotating: rho = -phi - (varphi_b - varphi_a);
+            // d/dt (varphi_b - varphi_a) = omega_ab - (delta_b - delta_a).
+            let omega_ab = model.transition_omega(d.coupling);
+            let (rho0, rate, sweep) = (-p0 - dphase0, -p1 - omega_ab + ddet, -p2 - dcurv);
+            terms.push(make_term(
+                i,
+                d.field,
+                a,
+                b,
+                half,
+                rho0,
+                rate,
+                sweep,
+                duration,
+                Rotation::CounterRotating,
+            ));
+        }
+    }
+    terms
+}
+
+/// Refuse a frame with a non-finite coupling or detuning.
+fn check_frame(model: &Model, terms: &[Term], levels: &[FrameLevel]) -> Result<(), AssemblyError> {
+    for t in terms {
+        if !(t.coupling.re.is_finite() && t.coupling.im.is_finite()) {
+            return Err(AssemblyError::NonFinite(format!(
+                "frame coupling of {}",
+                drive_name(model, t.drive)
+            )));
+        }
+    }
+    for (k, l) in levels.iter().enumerate() {
+        if !(l.detuning.is_finite() && l.detuning_rate.is_finite() && l.phase0.is_finite()) {
+            return Err(AssemblyError::NonFinite(format!(
+                "frame detuning of level '{}'",
+                model.levels[k].id
+            )));
+        }
+    }
+    Ok(())
+}
+
+impl FrameHamiltonian {
+    /// Assemble the frame Hamiltonian of a model.
+    pub fn build(model: &Model) -> Result<Self, AssemblyError> {
+        check_model(model)?;
+        let n = model.levels.len();
+        let t0 = model.window.start;
+        let duration = model.window.duration();
+        let (included, excluded): (Vec<usize>, Vec<usize>) =
+            (0..model.drives.len()).partition(|&i| model.drive_included(&model.drives[i]));
+        let fr = Forest::grow(model, &included, t0);
         let levels: Vec<FrameLevel> = (0..n)
             .map(|k| FrameLevel {
-                detuning: detuning[k],
-                detuning_rate: -curvature[k],
+                detuning: fr.detuning[k],
+                detuning_rate: -fr.curvature[k],
                 half_gamma: 0.5 * model.levels[k].gamma,
-                phase0: phase0[k],
-                root: root_of[k],
-                via: via[k],
+                phase0: fr.phase0[k],
+                root: fr.root_of[k],
+                via: fr.via[k],
             })
             .collect();
-
-        let mut terms = Vec::new();
-        for &i in &included {
-            let d = &model.drives[i];
-            let c = &model.couplings[d.coupling];
-            let (a, b) = (c.lower, c.upper);
-            let f = &model.fields[d.field];
-            let (p0, p1, p2) = field_phase_poly(model, d.field, t0);
-            let shift = model.detuning(d) + f.chirp * (t0 - f.envelope.center());
-            let dphase0 = phase0[b] - phase0[a];
-            let dcurv = curvature[b] - curvature[a];
-            let ddet = detuning[b] - detuning[a];
-            let half = 0.5 * d.rabi;
-            // Co-rotating: rho = phi - (varphi_b - varphi_a).
-            if on_tree[i] {
-                terms.push(Term {
-                    drive: i,
-                    field: d.field,
-                    lower: a,
-                    upper: b,
-                    coupling: Complex64::new(half, 0.0),
-                    rotation: Rotation::CoRotating,
-                    residual: None,
-                    on_tree: true,
-                });
-            } else {
-                let rho0 = p0 - dphase0;
-                let rate = shift + ddet;
-                let sweep = p2 - dcurv;
-                terms.push(make_term(
-                    i,
-                    d.field,
-                    a,
-                    b,
-                    half,
-                    rho0,
-                    rate,
-                    sweep,
-                    duration,
-                    Rotation::CoRotating,
-                ));
-            }
-            if !f.rwa {
-                // Counter-rotating: rho = -phi - (varphi_b - varphi_a);
-                // d/dt (varphi_b - varphi_a) = omega_ab - (delta_b - delta_a).
-                let omega_ab = model.transition_omega(d.coupling);
-                let rho0 = -p0 - dphase0;
-                let rate = -p1 - omega_ab + ddet;
-                let sweep = -p2 - dcurv;
-                terms.push(make_term(
-                    i,
-                    d.field,
-                    a,
-                    b,
-                    half,
-                    rho0,
-                    rate,
-                    sweep,
-                    duration,
-                    Rotation::CounterRotating,
-                ));
-            }
-        }
-        for t in &terms {
-            if !(t.coupling.re.is_finite() && t.coupling.im.is_finite()) {
-                return Err(AssemblyError::NonFinite(format!(
-                    "frame coupling of {}",
-                    drive_name(model, t.drive)
-                )));
-            }
-        }
-        for (k, l) in levels.iter().enumerate() {
-            if !(l.detuning.is_finite() && l.detuning_rate.is_finite() && l.phase0.is_finite()) {
-                return Err(AssemblyError::NonFinite(format!(
-                    "frame detuning of level '{}'",
-                    model.levels[k].id
-                )));
-            }
-        }
+        let terms = drive_terms(model, &included, &fr, t0, duration);
+        check_frame(model, &terms, &levels)?;
         Ok(FrameHamiltonian {
             t0,
             duration,
@@ -424,7 +454,7 @@ impl FrameHamiltonian {
             terms,
             included,
             excluded,
-            tree,
+            tree: fr.tree,
         })
     }
 
