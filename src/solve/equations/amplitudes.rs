@@ -161,7 +161,7 @@ impl Equation for Amplitudes<'_> {
     }
 
     /// Hermite interpolation of the amplitude, then its square.
-    #[inline]
+    #[inline(always)]
     fn interpolated_population(
         &self,
         k: usize,

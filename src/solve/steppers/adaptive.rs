@@ -332,6 +332,7 @@ const DENSE_POINTS: usize = 32;
 struct Observed<'a, E: Equation, O: Observer<E>> {
     eq: &'a mut E,
     obs: &'a mut O,
+    /// Evaluations outside the integrator's steps (stretch starts, dense re-runs).
     evaluations: Cell<u64>,
     rtol: f64,
     atol: f64,
@@ -347,16 +348,15 @@ impl<E: Equation, O: Observer<E>> Observed<'_, E, O> {
         self.eq.enter_stretch(a, b);
         self.prev_s = s;
         self.prev_y.copy_from_slice(y);
-        let mut dy = std::mem::take(&mut self.prev_dy);
-        self.eval(s, y, &mut dy);
-        self.prev_dy = dy;
+        self.evaluations.set(self.evaluations.get() + 1);
+        self.eq.rhs(s, y, &mut self.prev_dy);
     }
 }
 
 impl<E: Equation, O: Observer<E>> AutonomousRhs for Observed<'_, E, O> {
     #[inline]
     fn eval(&self, s: f64, y: &[f64], dy: &mut [f64]) {
-        self.evaluations.set(self.evaluations.get() + 1);
+        // Counted by the integrator ([`AutonomousRun::evaluations`]).
         self.eq.rhs(s, y, dy);
     }
 
@@ -481,6 +481,7 @@ pub(crate) fn propagate<E: Equation, O: Observer<E>>(
         sys.obs.sample(&*sys.eq, plan.stops[0], y);
     }
     let mut steps = 0u64;
+    let mut evaluations = 0u64;
     let mut h: f64 = 0.0;
     let last = plan.stops.len() - 1;
     let to_s = |i: usize| {
@@ -528,6 +529,7 @@ pub(crate) fn propagate<E: Equation, O: Observer<E>>(
             });
         }
         steps += run.steps;
+        evaluations += run.evaluations;
         h = run.last_step;
         y.copy_from_slice(&run.y);
         if let Some(Some(_)) = plan.sample_at.get(i + 1) {
@@ -536,6 +538,6 @@ pub(crate) fn propagate<E: Equation, O: Observer<E>>(
     }
     Ok(Run {
         steps,
-        evaluations: sys.evaluations.get(),
+        evaluations: evaluations + sys.evaluations.get(),
     })
 }
