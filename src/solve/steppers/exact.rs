@@ -239,6 +239,98 @@ fn substeps<E: Equation>(
         .collect())
 }
 
+/// U and M of the current generator per sub-step length, and how many
+/// exponentials were taken.
+#[derive(Default)]
+struct Exponentials {
+    cache: Vec<(f64, DMatrix<Complex64>, Option<DMatrix<Complex64>>)>,
+    taken: u64,
+}
+
+impl Exponentials {
+    /// Index of (U, M) for sub-step dt of `gen` on the segment [sa, sb].
+    fn index(&mut self, gen: &Generator, dt: f64, sa: f64, sb: f64) -> Result<usize, SolveError> {
+        if let Some(p) = self
+            .cache
+            .iter()
+            .position(|(d, _, _)| (d - dt).abs() <= 1e-12 * dt)
+        {
+            return Ok(p);
+        }
+        let (u, mm) = propagators(gen, dt);
+        self.taken += 1;
+        if !all_finite(&u) || mm.as_ref().is_some_and(|mm| !all_finite(mm)) {
+            return Err(SolveError::NonFinite {
+                stage: format!("matrix exponential of the segment {sa:.6e} s to {sb:.6e} s"),
+            });
+        }
+        self.cache.push((dt, u, mm));
+        Ok(self.cache.len() - 1)
+    }
+}
+
+/// One sub-step z -> U z (lost += z^dagger M z), handed to the observers in
+/// the frame of [`still`]; afterwards `b.c` and `b.dc` hold the new state.
+#[allow(clippy::too_many_arguments)]
+fn sub_step<E: Equation, O: Observer<E>>(
+    eq: &E,
+    obs: &mut O,
+    b: &mut Buffers,
+    gen: &Generator,
+    (u, mm): (&DMatrix<Complex64>, Option<&DMatrix<Complex64>>),
+    dt: f64,
+    with_lost: bool,
+    lost: &mut f64,
+) {
+    let m = b.c.len();
+    let lost0 = *lost;
+    if let Some(mm) = mm {
+        mm.mul_to(&b.c, &mut b.mc);
+        *lost += b.c.dotc(&b.mc).re;
+    }
+    u.mul_to(&b.c, &mut b.c1);
+    gen.matrix.mul_to(&b.c1, &mut b.dc1);
+    let lost_at = |l: f64, c: &DVector<Complex64>| with_lost.then(|| (l, loss_rate(&gen.loss, c)));
+    still(
+        &b.c,
+        &b.dc,
+        &b.spin,
+        None,
+        lost_at(lost0, &b.c),
+        &mut b.y0,
+        &mut b.d0,
+    );
+    let end_lost = lost_at(*lost, &b.c1);
+    still(
+        &b.c1,
+        &b.dc1,
+        &b.spin,
+        Some(&b.turn),
+        end_lost,
+        &mut b.y1,
+        &mut b.d1,
+    );
+    for (k, z) in b.c1.iter().enumerate() {
+        b.end[2 * k] = z.re;
+        b.end[2 * k + 1] = z.im;
+    }
+    if with_lost {
+        b.end[2 * m] = *lost;
+    }
+    let step = Step {
+        h: dt,
+        y0: &b.y0,
+        d0: &b.d0,
+        y1: &b.y1,
+        d1: &b.d1,
+        end: &b.end,
+        interior: Interior::Trusted,
+    };
+    obs.step(eq, &step, &mut NoDense);
+    std::mem::swap(&mut b.c, &mut b.c1);
+    std::mem::swap(&mut b.dc, &mut b.dc1);
+}
+
 /// Run the exact stepper over the plan (the caller has checked that it
 /// applies): `y` holds the initial state and receives the final one. With
 /// `peaks` the stretches are sub-stepped for the peak observer.
@@ -282,91 +374,33 @@ pub(crate) fn propagate<E: Equation, O: Observer<E>>(
         obs.sample(eq, plan.stops[0], y);
     }
     let mut steps = 0u64;
-    let mut exponentials = 0u64;
-    // Cache of (dt, U, M) for the current generator.
-    let mut cache: Vec<(f64, DMatrix<Complex64>, Option<DMatrix<Complex64>>)> = Vec::new();
+    let mut exps = Exponentials::default();
     for (i, &nsub) in nsubs.iter().enumerate() {
         let (sa, sb) = (plan.stops[i], plan.stops[i + 1]);
         generator_of(eq, plan, i, &mut next)?;
         if i == 0 || next != gen {
             std::mem::swap(&mut gen, &mut next);
-            cache.clear();
+            exps.cache.clear();
         }
         let dt = (sb - sa) / nsub as f64;
-        let pos = cache
-            .iter()
-            .position(|(d, _, _)| (d - dt).abs() <= 1e-12 * dt);
-        let idx = match pos {
-            Some(p) => p,
-            None => {
-                let (u, mm) = propagators(&gen, dt);
-                exponentials += 1;
-                if !all_finite(&u) || mm.as_ref().is_some_and(|mm| !all_finite(mm)) {
-                    return Err(SolveError::NonFinite {
-                        stage: format!(
-                            "matrix exponential of the segment {sa:.6e} s to {sb:.6e} s"
-                        ),
-                    });
-                }
-                cache.push((dt, u, mm));
-                cache.len() - 1
-            }
-        };
-        let (_, u, mm) = &cache[idx];
-        let g = &gen.matrix;
+        let idx = exps.index(&gen, dt, sa, sb)?;
+        let (_, u, mm) = &exps.cache[idx];
         for k in 0..m {
-            b.spin[k] = -g[(k, k)].im;
+            b.spin[k] = -gen.matrix[(k, k)].im;
             b.turn[k] = Complex64::from_polar(1.0, b.spin[k] * dt);
         }
-        g.mul_to(&b.c, &mut b.dc);
+        gen.matrix.mul_to(&b.c, &mut b.dc);
         for _ in 0..nsub {
-            let lost0 = lost;
-            if let Some(mm) = mm {
-                mm.mul_to(&b.c, &mut b.mc);
-                lost += b.c.dotc(&b.mc).re;
-            }
-            u.mul_to(&b.c, &mut b.c1);
-            g.mul_to(&b.c1, &mut b.dc1);
-            let lost_at =
-                |l: f64, c: &DVector<Complex64>| with_lost.then(|| (l, loss_rate(&gen.loss, c)));
-            still(
-                &b.c,
-                &b.dc,
-                &b.spin,
-                None,
-                lost_at(lost0, &b.c),
-                &mut b.y0,
-                &mut b.d0,
+            sub_step(
+                &*eq,
+                obs,
+                &mut b,
+                &gen,
+                (u, mm.as_ref()),
+                dt,
+                with_lost,
+                &mut lost,
             );
-            let end_lost = lost_at(lost, &b.c1);
-            still(
-                &b.c1,
-                &b.dc1,
-                &b.spin,
-                Some(&b.turn),
-                end_lost,
-                &mut b.y1,
-                &mut b.d1,
-            );
-            for (k, z) in b.c1.iter().enumerate() {
-                b.end[2 * k] = z.re;
-                b.end[2 * k + 1] = z.im;
-            }
-            if with_lost {
-                b.end[2 * m] = lost;
-            }
-            let step = Step {
-                h: dt,
-                y0: &b.y0,
-                d0: &b.d0,
-                y1: &b.y1,
-                d1: &b.d1,
-                end: &b.end,
-                interior: Interior::Trusted,
-            };
-            obs.step(eq, &step, &mut NoDense);
-            std::mem::swap(&mut b.c, &mut b.c1);
-            std::mem::swap(&mut b.dc, &mut b.dc1);
         }
         steps += nsub;
         if !b.c.iter().all(|z| z.re.is_finite() && z.im.is_finite()) || !lost.is_finite() {
@@ -381,6 +415,6 @@ pub(crate) fn propagate<E: Equation, O: Observer<E>>(
     y.copy_from_slice(&b.end);
     Ok(Run {
         steps,
-        evaluations: exponentials,
+        evaluations: exps.taken,
     })
 }
