@@ -2,7 +2,9 @@
 //! a hyperfine-like manifold with Gaussian pulses (adaptive), and ladders of
 //! N = 5, 10, 20, 50, 100 levels with nearest-neighbour couplings, both with
 //! Gaussian pulses (adaptive) and rectangular pulses (exact), so the growth
-//! of cost with N is visible. Invented, illustrative numbers.
+//! of cost with N is visible; the first two cases also without peak tracking
+//! (`SolveOptions::peaks = false`, as scans and tune run). Invented,
+//! illustrative numbers.
 //!
 //! Run: `cargo bench --bench propagation` (see docs/performance.md).
 
@@ -113,9 +115,19 @@ fn bench(c: &mut Criterion) {
     c.bench_function("two_level_rectangular_exact", |bch| {
         bch.iter(|| solve(black_box(&m), &opts).expect("solve"))
     });
+    let no_peaks = SolveOptions {
+        peaks: false,
+        ..SolveOptions::default()
+    };
+    c.bench_function("two_level_rectangular_exact_no_peaks", |bch| {
+        bch.iter(|| solve(black_box(&m), &no_peaks).expect("solve"))
+    });
     let m = hyperfine_gaussian();
     c.bench_function("hyperfine_gaussian_adaptive", |bch| {
         bch.iter(|| solve(black_box(&m), &opts).expect("solve"))
+    });
+    c.bench_function("hyperfine_gaussian_adaptive_no_peaks", |bch| {
+        bch.iter(|| solve(black_box(&m), &no_peaks).expect("solve"))
     });
     let mut g = c.benchmark_group("ladder_gaussian_adaptive");
     for n in [5usize, 10, 20, 50, 100] {

@@ -70,6 +70,7 @@ fn step_budget_is_enforced_during_the_run() {
         &SolveOptions {
             samples: 0,
             step_budget: 90,
+            ..SolveOptions::default()
         },
     )
     .expect_err("must fail");

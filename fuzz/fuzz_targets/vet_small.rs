@@ -16,7 +16,7 @@ fuzz_target!(|data: &[u8]| {
     if model.levels.len() > 8 || model.drives.len() > 16 {
         return;
     }
-    let opts = SolveOptions { samples: 5, step_budget: 20_000 };
+    let opts = SolveOptions { samples: 5, step_budget: 20_000, ..SolveOptions::default() };
     let Ok(sol) = solve(&model, &opts) else { return };
     if levelplan::pipeline::check_solution(&sol).is_err() {
         return;

@@ -1,18 +1,38 @@
-//! Propagators of the time-dependent Schrodinger equation: exact (piecewise
-//! constant frame Hamiltonian, one matrix exponential per segment) and
-//! adaptive (ode_solvers), behind one entry point [`solve`].
+//! Propagation behind one entry point [`solve`], in three parts that do not
+//! know each other's insides:
 //!
-//! Owns: the [`Solution`] (bare-basis populations, peaks, loss, norm error,
-//! method and statistics). Must not: print, read files, or know about the
-//! perturbative estimator or any output format.
+//! - an **equation** (`equation.rs`, the trait; `equations/`, one file per
+//!   equation: today the Schrodinger amplitudes) supplies the state, the
+//!   right-hand side, populations, norm and lost part, and for
+//!   piecewise-constant stretches the generator;
+//! - a **stepper** (`steppers/`: adaptive Dormand-Prince 8(5,3), exact
+//!   matrix exponentials) advances any equation over the plan's stops
+//!   (`plan.rs`: envelope edges and sample times);
+//! - **observers** (`observers/`: samples, peaks, norm drift) record what the
+//!   run asks for after every accepted step and at sample times.
+//!
+//! Adding an equation touches no stepper and no observer. Peaks are tracked
+//! only where [`SolveOptions::peaks`] asks for them (the exact stepper then
+//! sub-steps stretches to sample them).
+//!
+//! Owns: the method choice, the [`Solution`] (bare-basis populations, peaks,
+//! loss, norm error, method and statistics). Must not: print, read files, or
+//! know about the perturbative estimator or any output format.
 //!
 //! INTERFACE FROZEN: fields may be added, none renamed or removed.
 
-pub mod adaptive;
-mod exact;
+pub mod equation;
+pub mod equations;
+pub mod observers;
 mod plan;
+pub mod steppers;
 
-pub use exact::PEAK_TOLERANCE;
+pub use steppers::adaptive;
+pub use steppers::exact::PEAK_TOLERANCE;
+
+use equation::Equation;
+use equations::amplitudes::Amplitudes;
+use observers::ObserverSet;
 
 use crate::hamiltonian::{AssemblyError, FrameHamiltonian};
 use crate::model::{Method, Model};
@@ -33,6 +53,11 @@ pub struct SolveOptions {
     /// Maximum number of steps (adaptive) or segments (exact) before the run
     /// stops with [`SolveError::StepBudget`].
     pub step_budget: u64,
+    /// Track peak populations (default true). Without, no peak observer runs,
+    /// the exact stepper takes one matrix exponential per stretch instead of
+    /// sub-stepping, and [`Solution::peak_populations`] holds the final
+    /// populations (for scans and tune, whose outputs show no peaks).
+    pub peaks: bool,
 }
 
 /// Documented default step budget.
@@ -43,6 +68,7 @@ impl Default for SolveOptions {
         SolveOptions {
             samples: 0,
             step_budget: DEFAULT_STEP_BUDGET,
+            peaks: true,
         }
     }
 }
@@ -53,13 +79,15 @@ pub struct Solution {
     pub method: MethodUsed,
     /// Final population of each level (model order).
     pub final_populations: Vec<f64>,
-    /// Largest population of each level during the window.
+    /// Largest population of each level during the window; the final
+    /// populations where `SolveOptions::peaks` is false.
     pub peak_populations: Vec<f64>,
     /// Population lost by decay, 1 - sum |c|^2 predicted by the decay terms.
     pub lost: f64,
     /// |1 - sum P - lost| over the run.
     pub norm_error: f64,
-    /// Accepted steps (adaptive) or segments/sub-steps (exact).
+    /// Accepted steps (adaptive) or segments/sub-steps (exact; one per
+    /// segment without peaks).
     pub steps: u64,
     /// Right-hand side evaluations (adaptive) or matrix exponentials (exact).
     pub evaluations: u64,
@@ -126,10 +154,8 @@ pub fn solve(model: &Model, opts: &SolveOptions) -> Result<Solution, SolveError>
     let solution = if fh.duration == 0.0 {
         trivial(model, &fh, &plan, method)
     } else {
-        match method {
-            MethodUsed::Exact => exact::propagate(model, &fh, &plan, opts)?,
-            MethodUsed::Adaptive => adaptive::propagate(model, &fh, &plan, opts)?,
-        }
+        let mut eq = Amplitudes::new(model, &fh);
+        run(&mut eq, model, &fh, &plan, method, opts)?
     };
     let finite = solution
         .final_populations
@@ -148,6 +174,52 @@ pub fn solve(model: &Model, opts: &SolveOptions) -> Result<Solution, SolveError>
         });
     }
     Ok(solution)
+}
+
+/// Advance `eq` with the chosen stepper and the observers `opts` asks for.
+fn run<E: Equation>(
+    eq: &mut E,
+    model: &Model,
+    fh: &FrameHamiltonian,
+    plan: &plan::Plan,
+    method: MethodUsed,
+    opts: &SolveOptions,
+) -> Result<Solution, SolveError> {
+    let mut y = vec![0.0; eq.dim()];
+    eq.initial_state(&mut y);
+    let mut obs = ObserverSet::new(eq.levels(), plan.samples, opts.peaks);
+    let stats = match method {
+        MethodUsed::Exact => {
+            steppers::exact::propagate(eq, &mut obs, &mut y, plan, opts, opts.peaks)?
+        }
+        MethodUsed::Adaptive => {
+            steppers::adaptive::propagate(eq, &mut obs, &mut y, model, fh, plan, opts)?
+        }
+    };
+    let mut final_populations = vec![0.0; eq.levels()];
+    eq.populations(&y, &mut final_populations);
+    let peak_populations = match obs.peaks {
+        Some(p) => p
+            .peaks
+            .iter()
+            .zip(&final_populations)
+            .map(|(p, f)| p.max(*f))
+            .collect(),
+        None => final_populations.clone(),
+    };
+    Ok(Solution {
+        method,
+        final_populations,
+        peak_populations,
+        lost: eq.lost(&y),
+        norm_error: obs.norm.error.max(obs.norm.drift(eq, &y)),
+        steps: stats.steps,
+        evaluations: stats.evaluations,
+        rtol: model.solver.rtol,
+        atol: model.solver.atol,
+        excluded_drives: fh.excluded.clone(),
+        samples: obs.samples.taken,
+    })
 }
 
 /// An empty window: the initial populations.
@@ -174,3 +246,6 @@ fn trivial(
             .collect(),
     }
 }
+
+#[cfg(test)]
+mod tests;

@@ -1,9 +1,9 @@
-//! What both propagators share: the stop times of a run (envelope edges and
-//! sample times), envelope evaluation within one segment, and the tracking of
-//! peak populations between steps.
+//! What every stepper shares: the stop times of a run (envelope edges and
+//! sample times), envelope evaluation within one stretch between stops, and
+//! the largest adaptive step an envelope allows.
 //!
-//! Owns: [`Plan`], [`Piece`], [`PeakTracker`]. Must not: integrate anything,
-//! print, or know about output formats.
+//! Owns: [`Plan`], [`Piece`], [`max_step`]. Must not: integrate anything,
+//! record populations (observers do), print, or know about output formats.
 
 use crate::hamiltonian::FrameHamiltonian;
 use crate::model::{Envelope, Model};
@@ -195,182 +195,9 @@ pub(crate) fn max_step(model: &Model, fh: &FrameHamiltonian, a: f64, b: f64) -> 
     h
 }
 
-/// Running maxima of |a_k|^2, updated from the end points of each step and
-/// from cubic Hermite interpolation of the amplitudes inside it.
-///
-/// States are interleaved real vectors (re_0, im_0, re_1, im_1, ...); the
-/// derivative is with respect to whatever variable the step length `h` is in.
-/// Inside each step the interpolant is sampled at theta = 1/4, 1/2, 3/4; where
-/// the step holds a local maximum, it is located by a parabola through the
-/// neighbouring samples (or through an end point and its derivative). The
-/// interpolation error of an amplitude oscillating at frequency W is about
-/// (W h)^4 / 384.
-///
-/// With `trust_interior` the interpolated maximum is recorded directly (the
-/// exact propagator, whose sub-steps are short enough). Otherwise only end
-/// points are recorded and every interior maximum that may reach the running
-/// peak is handed back in [`PeakTracker::candidates`] as (level, theta) for the
-/// caller to recompute accurately (the adaptive propagator, whose steps are
-/// long).
-#[derive(Debug, Clone)]
-pub(crate) struct PeakTracker {
-    pub peaks: Vec<f64>,
-    pub candidates: Vec<(usize, f64)>,
-    trust_interior: bool,
-}
-
-/// Interior maxima whose interpolated value is within this fraction of the
-/// running peak are recomputed (the interpolant may be off by about that much).
-const REFINE_MARGIN: f64 = 1e-3;
-
-#[inline]
-fn hermite(th: f64) -> [f64; 4] {
-    let t2 = th * th;
-    let t3 = t2 * th;
-    [
-        2.0 * t3 - 3.0 * t2 + 1.0,
-        t3 - 2.0 * t2 + th,
-        -2.0 * t3 + 3.0 * t2,
-        t3 - t2,
-    ]
-}
-
-impl PeakTracker {
-    pub fn new(n: usize, trust_interior: bool) -> PeakTracker {
-        PeakTracker {
-            peaks: vec![0.0; n],
-            candidates: Vec::new(),
-            trust_interior,
-        }
-    }
-
-    /// Record the populations of a state.
-    pub fn point(&mut self, y: &[f64]) {
-        for (k, p) in self.peaks.iter_mut().enumerate() {
-            let q = y[2 * k] * y[2 * k] + y[2 * k + 1] * y[2 * k + 1];
-            if q > *p {
-                *p = q;
-            }
-        }
-    }
-
-    /// Record level k's population q.
-    pub fn value(&mut self, k: usize, q: f64) {
-        if q > self.peaks[k] {
-            self.peaks[k] = q;
-        }
-    }
-
-    /// Examine the inside of a step from (y0, d0) to (y1, d1) of length h.
-    pub fn step(&mut self, y0: &[f64], d0: &[f64], y1: &[f64], d1: &[f64], h: f64) {
-        const TH: [f64; 3] = [0.25, 0.5, 0.75];
-        let w = [hermite(TH[0]), hermite(TH[1]), hermite(TH[2])];
-        for k in 0..self.peaks.len() {
-            let (r, i) = (2 * k, 2 * k + 1);
-            let at = |c: &[f64; 4]| {
-                let re = c[0] * y0[r] + c[1] * h * d0[r] + c[2] * y1[r] + c[3] * h * d1[r];
-                let im = c[0] * y0[i] + c[1] * h * d0[i] + c[2] * y1[i] + c[3] * h * d1[i];
-                re * re + im * im
-            };
-            let p = [
-                y0[r] * y0[r] + y0[i] * y0[i],
-                at(&w[0]),
-                at(&w[1]),
-                at(&w[2]),
-                y1[r] * y1[r] + y1[i] * y1[i],
-            ];
-            let mut j = 0;
-            for m in 1..5 {
-                if p[m] > p[j] {
-                    j = m;
-                }
-            }
-            // Where the step holds a local maximum: its position and estimate.
-            let found: Option<(f64, f64)> = match j {
-                1..=3 => {
-                    let den = p[j - 1] - 2.0 * p[j] + p[j + 1];
-                    if den < 0.0 {
-                        let u = (0.5 * (p[j - 1] - p[j + 1]) / den).clamp(-1.0, 1.0);
-                        let th = 0.25 * (j as f64 + u);
-                        Some((th, at(&hermite(th)).max(p[j])))
-                    } else {
-                        Some((0.25 * j as f64, p[j]))
-                    }
-                }
-                0 => {
-                    // Slope at theta = 0 (per unit theta).
-                    let s = 2.0 * h * (y0[r] * d0[r] + y0[i] * d0[i]);
-                    parabola_from_slope(p[0], s, p[1], 0.25).map(|(x, _)| (x, at(&hermite(x))))
-                }
-                _ => {
-                    let s = 2.0 * h * (y1[r] * d1[r] + y1[i] * d1[i]);
-                    // Mirror: distance back from theta = 1.
-                    parabola_from_slope(p[4], -s, p[3], 0.25)
-                        .map(|(x, _)| (1.0 - x, at(&hermite(1.0 - x))))
-                }
-            };
-            if let Some((th, v)) = found {
-                if self.trust_interior {
-                    self.value(k, v);
-                } else if v >= self.peaks[k] * (1.0 - REFINE_MARGIN) && v > 0.0 {
-                    self.candidates.push((k, th.clamp(0.0, 1.0)));
-                }
-            }
-        }
-    }
-}
-
-/// Parabola through (0, p0) with slope s at 0 and through (x1, p1): if it has
-/// a maximum inside (0, x1), return its position and value.
-fn parabola_from_slope(p0: f64, s: f64, p1: f64, x1: f64) -> Option<(f64, f64)> {
-    if s <= 0.0 {
-        return None;
-    }
-    // p(x) = p0 + s x + c x^2
-    let c = (p1 - p0 - s * x1) / (x1 * x1);
-    if c >= 0.0 {
-        return None;
-    }
-    let x = -s / (2.0 * c);
-    (x > 0.0 && x < x1).then_some((x, p0 + 0.5 * s * x))
-}
-
 #[cfg(test)]
 mod tests {
     use super::*;
-
-    // Cubic Hermite interpolation: the peak of a population sin^2(W t / 2) is
-    // recovered between samples to the interpolation error bound of the
-    // amplitude, (W' h)^4 / 384 with W' = W / 2 the amplitude's frequency, i.e.
-    // about 2 (0.15)^4 / 384 = 2.6e-6 in the population here (elementary
-    // interpolation error bound; common practice, no source).
-    #[test]
-    fn tracker_finds_peak_between_samples() {
-        // P(t) = sin^2(W t / 2) from amplitude a = sin(W t/2) (real), peak 1 at W t = pi.
-        let w = 1.0;
-        let h = 0.3;
-        let mut tr = PeakTracker::new(1, true);
-        let mut t = 0.0;
-        let amp = |t: f64| [(0.5 * w * t).sin(), 0.0];
-        let der = |t: f64| [0.5 * w * (0.5 * w * t).cos(), 0.0];
-        while t < 4.0 {
-            tr.step(&amp(t), &der(t), &amp(t + h), &der(t + h), h);
-            t += h;
-        }
-        assert!((tr.peaks[0] - 1.0).abs() < 3e-6, "{}", tr.peaks[0]);
-        assert!(
-            (tr.peaks[0] - 1.0).abs() > 1e-9,
-            "interpolation cannot be exact here"
-        );
-        // Without trusting the interior, the step is handed back for refinement.
-        let mut tr = PeakTracker::new(1, false);
-        tr.point(&amp(2.9));
-        tr.step(&amp(2.9), &der(2.9), &amp(3.2), &der(3.2), 0.3);
-        assert_eq!(tr.candidates.len(), 1);
-        let th = tr.candidates[0].1;
-        assert!((2.9 + 0.3 * th - std::f64::consts::PI).abs() < 1e-3, "{th}");
-        assert!(tr.peaks[0] < 0.999);
-    }
 
     #[test]
     fn samples_end_exactly() {
