@@ -80,6 +80,8 @@ pub fn evolve(model: &Model, samples: usize) -> Result<Evolution, Error> {
         model,
         &SolveOptions {
             samples,
+            // The samples are what is shown; peaks between them are not.
+            peaks: false,
             ..SolveOptions::default()
         },
     )?;

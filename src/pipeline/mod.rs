@@ -111,13 +111,31 @@ pub fn inspect(model: &Model, provenance: Provenance) -> InspectReport {
 }
 
 /// Propagate and estimate one model and assemble its report (no remedy
-/// checks, no goal): the work of one point of a scan.
+/// checks, no goal), peak populations tracked.
 pub fn vet_model(
     model: &Model,
     prov: Provenance,
     tolerance: Option<f64>,
 ) -> Result<VetReport, Error> {
-    let sol = solve::solve(model, &SolveOptions::default())?;
+    vet_model_with(model, prov, tolerance, true)
+}
+
+/// [`vet_model`] with or without peak tracking: the points of a scan and of
+/// `tune` show no peaks, so they skip that work (each level's peak
+/// population is then its final one).
+pub(crate) fn vet_model_with(
+    model: &Model,
+    prov: Provenance,
+    tolerance: Option<f64>,
+    peaks: bool,
+) -> Result<VetReport, Error> {
+    let sol = solve::solve(
+        model,
+        &SolveOptions {
+            peaks,
+            ..SolveOptions::default()
+        },
+    )?;
     check_solution(&sol)?;
     let est = estimate::estimate(model)?;
     let rep = report::vet(model, prov, &sol, &est, tolerance)?;

@@ -7,7 +7,7 @@
 //! and the whole `tune` search. Must not: read or write files, draw a
 //! progress bar, or spell rows (the CLI and `render::scan` do).
 
-use super::vet_model;
+use super::vet_model_with;
 use crate::error::Error;
 use crate::model::Model;
 use crate::report::{self, Provenance, Role, VetReport};
@@ -101,8 +101,9 @@ impl Study {
         first.ok_or_else(|| bad("--vary", "empty grid"))
     }
 
-    /// One full run (exact + perturbative, no remedy checks) at a point,
-    /// errors marked with the point.
+    /// One full run (exact + perturbative, no remedy checks, no peak
+    /// tracking: rows show final populations) at a point, errors marked
+    /// with the point.
     pub fn vet_point(
         &self,
         grid: &Grid,
@@ -112,7 +113,7 @@ impl Study {
     ) -> Result<VetReport, Error> {
         let run = || -> Result<VetReport, Error> {
             let model = self.model_at(grid, coords)?;
-            let rep = vet_model(&model, self.provenance(), tolerance)?;
+            let rep = vet_model_with(&model, self.provenance(), tolerance, false)?;
             if rep.levels.len() != n_levels {
                 return Err(bad(
                     "--vary",
