@@ -8,7 +8,7 @@
 
 use super::numfmt::{self, Num};
 use crate::estimate::Order;
-use crate::report::{InspectReport, LevelRow, Role, SafetyNote, VetReport};
+use crate::report::{InspectReport, LevelRow, RemedyRow, Role, SafetyNote, VetReport};
 use crate::solve::MethodUsed;
 
 const TWO_PI: f64 = 2.0 * std::f64::consts::PI;
@@ -210,8 +210,8 @@ fn status_cell(row: &LevelRow) -> Cell {
     Cell::text(&words.join(" ")).marked(mark)
 }
 
-/// Lay out the vet report.
-pub fn vet_doc(r: &VetReport) -> Doc {
+/// The head lines of the vet report: provenance, method, tolerances, window.
+fn vet_meta(r: &VetReport) -> Vec<(String, String)> {
     let mut meta = provenance_meta(
         &r.provenance.tool,
         &r.provenance.version,
@@ -240,7 +240,11 @@ pub fn vet_doc(r: &VetReport) -> Doc {
         "spectator tolerance".into(),
         numfmt::population(r.tolerance).plain(),
     ));
+    meta
+}
 
+/// The table of every level's populations.
+fn levels_section(r: &VetReport) -> Section {
     use Align::*;
     let rows = r
         .levels
@@ -285,14 +289,19 @@ pub fn vet_doc(r: &VetReport) -> Doc {
         &[Left, Left, Right, Right, Right, Left, Right, Right, Left],
         rows,
     );
-    let mut sections = vec![Section {
+    Section {
         heading: "Populations at the end of the window".into(),
         table: Some(levels),
         notes: vec![
             "final and peak: exact propagation; estimate: perturbation theory of the stated order from the initial populations; LEAK: spectator above its tolerance; est?: estimate above 0.1 or off the exact value by more than a factor 2.".into(),
         ],
-    }];
+    }
+}
 
+/// The leaks with the drives that feed them, and the remedies.
+fn leak_sections(r: &VetReport) -> Vec<Section> {
+    use Align::*;
+    let mut sections = Vec::new();
     // Leaks and the drives that feed them.
     let mut leak_rows = Vec::new();
     let mut remedies = Vec::new();
@@ -309,37 +318,7 @@ pub fn vet_doc(r: &VetReport) -> Doc {
             ]);
         }
         if let Some(m) = &l.remedy {
-            let exact = |x: Option<f64>| {
-                x.map_or_else(String::new, |v| {
-                    format!(" (exact {})", numfmt::population(v).plain())
-                })
-            };
-            let length = match m.length_for_tolerance {
-                Some(t) => format!(
-                    "a {} pulse of {} (now {}) gives {}{}",
-                    m.present_shape,
-                    numfmt::time(t).plain(),
-                    numfmt::time(m.present_length).plain(),
-                    numfmt::population(l.tolerance).plain(),
-                    exact(m.exact_at_length)
-                ),
-                None => format!(
-                    "no {} pulse length within 1e4 of the present one reaches {}",
-                    m.present_shape,
-                    numfmt::population(l.tolerance).plain()
-                ),
-            };
-            remedies.push(format!(
-                "{}: keeping the pulse area of field {}, a gaussian envelope of the same intensity FWHM ({}) gives {}{}, a blackman envelope {}{}; {}.",
-                l.id,
-                m.field,
-                numfmt::time(m.fwhm).plain(),
-                numfmt::population(m.gaussian_same_area).plain(),
-                exact(m.exact_gaussian),
-                numfmt::population(m.blackman_same_area).plain(),
-                exact(m.exact_blackman),
-                length
-            ));
+            remedies.push(remedy_text(l, m));
         }
     }
     if !leak_rows.is_empty() {
@@ -368,23 +347,65 @@ pub fn vet_doc(r: &VetReport) -> Doc {
             });
         }
     }
+    sections
+}
 
-    if !r.excluded.is_empty() {
-        let rows = r
-            .excluded
-            .iter()
-            .map(|x| {
-                vec![
-                    Cell::text(&x.field),
-                    Cell::text(&format!("{} - {}", x.lower, x.upper)),
-                    Cell::num(numfmt::frequency(x.detuning / TWO_PI, true)),
-                    Cell::num(numfmt::frequency(x.rabi / TWO_PI, false)),
-                    Cell::num(numfmt::population(x.population)),
-                    Cell::num(numfmt::frequency(x.light_shift / TWO_PI, true)),
-                ]
-            })
-            .collect();
-        sections.push(Section {
+/// The remedy sentence of a flagged level.
+fn remedy_text(l: &LevelRow, m: &RemedyRow) -> String {
+    let exact = |x: Option<f64>| {
+        x.map_or_else(String::new, |v| {
+            format!(" (exact {})", numfmt::population(v).plain())
+        })
+    };
+    let length = match m.length_for_tolerance {
+        Some(t) => format!(
+            "a {} pulse of {} (now {}) gives {}{}",
+            m.present_shape,
+            numfmt::time(t).plain(),
+            numfmt::time(m.present_length).plain(),
+            numfmt::population(l.tolerance).plain(),
+            exact(m.exact_at_length)
+        ),
+        None => format!(
+            "no {} pulse length within 1e4 of the present one reaches {}",
+            m.present_shape,
+            numfmt::population(l.tolerance).plain()
+        ),
+    };
+    format!(
+        "{}: keeping the pulse area of field {}, a gaussian envelope of the same intensity FWHM ({}) gives {}{}, a blackman envelope {}{}; {}.",
+        l.id,
+        m.field,
+        numfmt::time(m.fwhm).plain(),
+        numfmt::population(m.gaussian_same_area).plain(),
+        exact(m.exact_gaussian),
+        numfmt::population(m.blackman_same_area).plain(),
+        exact(m.exact_blackman),
+        length
+    )
+}
+
+/// The drives left out by the detuning cutoff, if any.
+fn excluded_section(r: &VetReport) -> Option<Section> {
+    use Align::*;
+    if r.excluded.is_empty() {
+        return None;
+    }
+    let rows = r
+        .excluded
+        .iter()
+        .map(|x| {
+            vec![
+                Cell::text(&x.field),
+                Cell::text(&format!("{} - {}", x.lower, x.upper)),
+                Cell::num(numfmt::frequency(x.detuning / TWO_PI, true)),
+                Cell::num(numfmt::frequency(x.rabi / TWO_PI, false)),
+                Cell::num(numfmt::population(x.population)),
+                Cell::num(numfmt::frequency(x.light_shift / TWO_PI, true)),
+            ]
+        })
+        .collect();
+    Some(Section {
             heading: "Drives left out of the dynamics by the detuning cutoff".into(),
             table: Some(table(
                 &["field", "transition", "detuning", "Rabi freq.", "estimate", "light shift"],
@@ -392,9 +413,11 @@ pub fn vet_doc(r: &VetReport) -> Doc {
                 rows,
             )),
             notes: vec!["Their populations are first-order estimates; light shift Omega^2/(4 Delta) (cyclic) on the lower level.".into()],
-        });
-    }
+        })
+}
 
+/// Targets, loss, norm error and the verdicts.
+fn summary_section(r: &VetReport) -> Section {
     let targets: Vec<String> = r
         .levels
         .iter()
@@ -435,11 +458,19 @@ pub fn vet_doc(r: &VetReport) -> Doc {
             )
         });
     }
-    sections.push(Section {
+    Section {
         heading: "Summary".into(),
         table: None,
         notes: totals,
-    });
+    }
+}
+
+/// Lay out the vet report.
+pub fn vet_doc(r: &VetReport) -> Doc {
+    let mut sections = vec![levels_section(r)];
+    sections.extend(leak_sections(r));
+    sections.extend(excluded_section(r));
+    sections.push(summary_section(r));
     if let Some(s) = safety_section(&r.safety) {
         sections.push(s);
     }
@@ -448,13 +479,12 @@ pub fn vet_doc(r: &VetReport) -> Doc {
         table: None,
         notes: vec![MODEL_TEXT.into()],
     });
-
     Doc {
         title: match &r.title {
             Some(t) => format!("Leakage report: {t}"),
             None => "Leakage report".into(),
         },
-        meta,
+        meta: vet_meta(r),
         sections,
     }
 }
