@@ -5,10 +5,14 @@
 //! propagators. All numbers are invented; no scheme stands for a real species.
 //!
 //! Properties and their tolerances:
-//! - without decay the norm stays 1 to 1e-9 at every sample (unitarity of
-//!   the Schrodinger equation; any textbook);
-//! - with decay, sum P + lost = 1 to 1e-9 (the decay terms -i Gamma/2 remove
-//!   exactly the population the loss integral counts);
+//! - without decay the norm stays 1 at every sample (unitarity of the
+//!   Schrodinger equation; any textbook), within what the propagator
+//!   promises: 1e-9 for the exact one, for the adaptive one its error
+//!   control summed over the accepted steps (`norm_bound`, derivation
+//!   there); an adaptive drift above 1e-9 must also fall at least tenfold
+//!   when rtol and atol fall a hundredfold (`tolerance_proportionality`);
+//! - with decay, sum P + lost = 1 within the same bound (the decay terms
+//!   -i Gamma/2 remove exactly the population the loss integral counts);
 //! - the order of levels, couplings, fields and of the two ids in `between`
 //!   in the file does not change any population (1e-8);
 //! - a common energy offset does not change any population (a global phase;
@@ -29,10 +33,37 @@
 //! (a few hundred to a few thousand steps) stay below 1e-8 in population
 //! (common practice, no source: global error ~ steps x local tolerance).
 //!
-//! Case counts are set per property (`ProptestConfig::with_cases`: 128 for
-//! the norm, loss and estimate properties, 64 for the others) so the whole
-//! file runs in about 3 s (`cargo test --release --test properties` on the
-//! 2-core development machine, 2.6-3.9 s measured).
+//! The norm bound: a fixed 1e-9 was too tight for the adaptive propagator.
+//! Dop853 loses a little norm on every step where a populated level turns in
+//! the frame, so the drift grows with the number of steps (the case found is
+//! `norm_drift_of_a_long_free_rotation_is_integration_error`: 1.18e-9 after
+//! 1313 steps). Measured over 2946 adaptive schemes of each generator (3000
+//! drawn from seed 12345; `measure_norm_margin` with `--ignored`): largest
+//! drift 2.2e-9 (1.2e-9 with decay), at most 1.1e-3 of `norm_bound` and at
+//! most 0.011 rtol per step; 3 schemes (1 with decay) above 1e-9. Broken on
+//! purpose (one half of every coupling in the adaptive right-hand side
+//! scaled by 1 + x, reverted afterwards): x = 1e-7 fails the bound,
+//! x = 1e-8 and 1e-9 fail the tolerance check, x = 1e-10 passes.
+//!
+//! Case counts are set per property (`config`: 128 for the norm, loss and
+//! estimate properties, 64 for the others) so the whole file runs in about
+//! 3 s (`cargo test --release --test properties` on the 2-core development
+//! machine, 2.6-3.9 s measured).
+//!
+//! Deterministic in CI: the random cases are drawn from a fixed seed
+//! (`FIXED_SEED`), so every run tests the same schemes; the seeds in
+//! `properties.proptest-regressions` (failures found earlier, each a case a
+//! property once failed on) are replayed first, every run. To explore with
+//! fresh cases locally, give a seed (any u64) and optionally more cases:
+//!
+//! ```text
+//! PROPTEST_RNG_SEED=$RANDOM$RANDOM PROPTEST_CASES=2000 cargo test --release --test properties
+//! ```
+//!
+//! A failure found that way is shrunk and its seed appended to the
+//! regressions file (commit it with the fix, or with the corrected property:
+//! it is then replayed by CI for good); the same `PROPTEST_RNG_SEED`
+//! reproduces the run. `PROPTEST_CASES` alone keeps the fixed seed.
 //!
 //! Each property was checked to fail when the thing it guards is broken
 //! (temporarily, see `docs/reliability.md`), and two of them found real
@@ -633,10 +664,10 @@ const EXACT_NORM_TOL: f64 = 1e-9;
 /// this property (the last seed in `properties.proptest-regressions`, see
 /// `norm_drift_of_a_long_free_rotation_is_integration_error`), where
 /// Dop853 loses 9e-13 of norm per step on every one of 1313 steps.
-/// Measured over generated schemes, the drift stays 3 to 4 orders of
-/// magnitude inside the bound (see the module docs), so a defect of the
-/// equations (a non-Hermitian term of relative size 1e-6 or more) is caught
-/// by [`tolerance_proportionality`] rather than by this bound.
+/// Measured over generated schemes, the drift stays about 3 orders of
+/// magnitude inside the bound (see the module docs), so a small defect of
+/// the equations (a non-Hermitian term) is caught by
+/// [`tolerance_proportionality`] rather than by this bound.
 fn norm_bound(m: &Model, s: &Solution) -> f64 {
     match s.method {
         MethodUsed::Exact => EXACT_NORM_TOL,
@@ -913,14 +944,26 @@ fields:
     let drift = 1.0 - s.final_populations.iter().sum::<f64>();
     // The drift exists (the old fixed 1e-9 was too tight) and stays within
     // the promise.
-    assert!(drift > 1e-10 && drift <= norm_bound(&m, &s), "drift {drift:e}");
+    assert!(
+        drift > 1e-10 && drift <= norm_bound(&m, &s),
+        "drift {drift:e}"
+    );
     assert!((s.norm_error - drift).abs() <= 1e-15);
     // All of it is in l0, the level that turns; the others agree with the
     // independent integration far below the drift.
     let l0 = INDEPENDENT[0] - s.final_populations[0];
-    assert!((l0 - drift).abs() <= 0.05 * drift, "l0 {l0:e} vs drift {drift:e}");
-    for k in 1..7 {
-        let d = (s.final_populations[k] - INDEPENDENT[k]).abs();
+    assert!(
+        (l0 - drift).abs() <= 0.05 * drift,
+        "l0 {l0:e} vs drift {drift:e}"
+    );
+    for (k, (p, q)) in s
+        .final_populations
+        .iter()
+        .zip(INDEPENDENT)
+        .enumerate()
+        .skip(1)
+    {
+        let d = (p - q).abs();
         assert!(d <= 1e-11, "l{k}: {d:e}");
     }
     // Linear in time: the same loss per unit time, driven or not (11 evenly
@@ -937,37 +980,56 @@ fields:
     // converges to the independent integration.
     let tight = parse(&format!("{SCHEME}solver: {{rtol: 1e-12, atol: 1e-14}}\n"));
     let st = run(&tight, 0).unwrap();
-    assert!(st.norm_error <= 0.01 * drift, "tight drift {:e}", st.norm_error);
-    for k in 0..7 {
-        let d = (st.final_populations[k] - INDEPENDENT[k]).abs();
+    assert!(
+        st.norm_error <= 0.01 * drift,
+        "tight drift {:e}",
+        st.norm_error
+    );
+    for (k, (p, q)) in st.final_populations.iter().zip(INDEPENDENT).enumerate() {
+        let d = (p - q).abs();
         assert!(d <= 3e-11, "l{k} at rtol 1e-12: {d:e}");
     }
 }
 
-/// Measurement, run by hand: drift / bound over many generated schemes.
+/// Measurement behind the numbers in the module docs, run by hand
+/// (`cargo test --release --test properties measure_norm_margin -- --ignored
+/// --nocapture`): the norm drift of the adaptive propagator against
+/// `norm_bound` over 3000 generated schemes with and without decay.
 #[test]
-#[ignore]
+#[ignore = "measurement, run by hand"]
 fn measure_norm_margin() {
     use proptest::strategy::ValueTree;
     use proptest::test_runner::TestRunner;
     for decay in [false, true] {
-        let mut runner = TestRunner::new(Config { rng_seed: RngSeed::Fixed(12345), ..Config::default() });
+        let mut runner = TestRunner::new(Config {
+            rng_seed: RngSeed::Fixed(12345),
+            ..Config::default()
+        });
         let strat = spec_strategy(Gen { decay, ..STRONG });
-        let (mut worst, mut worst_abs, mut worst_per_step, mut n, mut over) = (0.0f64, 0.0f64, 0.0f64, 0, 0);
+        let (mut of_bound, mut largest, mut per_step) = (0.0f64, 0.0f64, 0.0f64);
+        let (mut adaptive, mut above) = (0, 0);
         for _ in 0..3000 {
             let spec = strat.new_tree(&mut runner).unwrap().current();
             let m = parse(&yaml(&spec, &Writing::default()));
             let s = run(&m, 0).unwrap();
-            if s.method != MethodUsed::Adaptive { continue; }
-            n += 1;
+            if s.method != MethodUsed::Adaptive {
+                continue;
+            }
+            adaptive += 1;
             let sum: f64 = s.final_populations.iter().sum::<f64>() + s.lost;
-            let dr = (sum - 1.0).abs().max(s.norm_error);
-            worst = worst.max(dr / norm_bound(&m, &s));
-            worst_abs = worst_abs.max(dr);
-            worst_per_step = worst_per_step.max(dr / (s.steps as f64 * s.rtol));
-            if dr > 1e-9 { over += 1; }
+            let drift = (sum - 1.0).abs().max(s.norm_error);
+            of_bound = of_bound.max(drift / norm_bound(&m, &s));
+            largest = largest.max(drift);
+            per_step = per_step.max(drift / (s.steps as f64 * s.rtol));
+            if drift > EXACT_NORM_TOL {
+                above += 1;
+            }
         }
-        println!("decay {decay}: {n} adaptive; max drift {worst_abs:e}; max drift/bound {worst:e}; max drift/(steps rtol) {worst_per_step:e}; above 1e-9: {over}");
+        println!(
+            "decay {decay}: {adaptive} adaptive; largest drift {largest:e}; \
+             drift / bound <= {of_bound:e}; drift / (steps rtol) <= {per_step:e}; \
+             above 1e-9: {above}"
+        );
     }
 }
 
