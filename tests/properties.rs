@@ -5,10 +5,14 @@
 //! propagators. All numbers are invented; no scheme stands for a real species.
 //!
 //! Properties and their tolerances:
-//! - without decay the norm stays 1 to 1e-9 at every sample (unitarity of
-//!   the Schrodinger equation; any textbook);
-//! - with decay, sum P + lost = 1 to 1e-9 (the decay terms -i Gamma/2 remove
-//!   exactly the population the loss integral counts);
+//! - without decay the norm stays 1 at every sample (unitarity of the
+//!   Schrodinger equation; any textbook), within what the propagator
+//!   promises: 1e-9 for the exact one, for the adaptive one its error
+//!   control summed over the accepted steps (`norm_bound`, derivation
+//!   there); an adaptive drift above 1e-9 must also fall at least tenfold
+//!   when rtol and atol fall a hundredfold (`tolerance_proportionality`);
+//! - with decay, sum P + lost = 1 within the same bound (the decay terms
+//!   -i Gamma/2 remove exactly the population the loss integral counts);
 //! - the order of levels, couplings, fields and of the two ids in `between`
 //!   in the file does not change any population (1e-8);
 //! - a common energy offset does not change any population (a global phase;
@@ -29,10 +33,37 @@
 //! (a few hundred to a few thousand steps) stay below 1e-8 in population
 //! (common practice, no source: global error ~ steps x local tolerance).
 //!
-//! Case counts are set per property (`ProptestConfig::with_cases`: 128 for
-//! the norm, loss and estimate properties, 64 for the others) so the whole
-//! file runs in about 3 s (`cargo test --release --test properties` on the
-//! 2-core development machine, 2.6-3.9 s measured).
+//! The norm bound: a fixed 1e-9 was too tight for the adaptive propagator.
+//! Dop853 loses a little norm on every step where a populated level turns in
+//! the frame, so the drift grows with the number of steps (the case found is
+//! `norm_drift_of_a_long_free_rotation_is_integration_error`: 1.18e-9 after
+//! 1313 steps). Measured over 2946 adaptive schemes of each generator (3000
+//! drawn from seed 12345; `measure_norm_margin` with `--ignored`): largest
+//! drift 2.2e-9 (1.2e-9 with decay), at most 1.1e-3 of `norm_bound` and at
+//! most 0.011 rtol per step; 3 schemes (1 with decay) above 1e-9. Broken on
+//! purpose (one half of every coupling in the adaptive right-hand side
+//! scaled by 1 + x, reverted afterwards): x = 1e-7 fails the bound,
+//! x = 1e-8 and 1e-9 fail the tolerance check, x = 1e-10 passes.
+//!
+//! Case counts are set per property (`config`: 128 for the norm, loss and
+//! estimate properties, 64 for the others) so the whole file runs in about
+//! 3 s (`cargo test --release --test properties` on the 2-core development
+//! machine, 2.6-3.9 s measured).
+//!
+//! Deterministic in CI: the random cases are drawn from a fixed seed
+//! (`FIXED_SEED`), so every run tests the same schemes; the seeds in
+//! `properties.proptest-regressions` (failures found earlier, each a case a
+//! property once failed on) are replayed first, every run. To explore with
+//! fresh cases locally, give a seed (any u64) and optionally more cases:
+//!
+//! ```text
+//! PROPTEST_RNG_SEED=$RANDOM$RANDOM PROPTEST_CASES=2000 cargo test --release --test properties
+//! ```
+//!
+//! A failure found that way is shrunk and its seed appended to the
+//! regressions file (commit it with the fix, or with the corrected property:
+//! it is then replayed by CI for good); the same `PROPTEST_RNG_SEED`
+//! reproduces the run. `PROPTEST_CASES` alone keeps the fixed seed.
 //!
 //! Each property was checked to fail when the thing it guards is broken
 //! (temporarily, see `docs/reliability.md`), and two of them found real
@@ -48,7 +79,7 @@ use levelplan::model::Model;
 use levelplan::scheme;
 use levelplan::solve::{self, MethodUsed, Solution, SolveError, SolveOptions};
 use proptest::prelude::*;
-use proptest::test_runner::Config;
+use proptest::test_runner::{Config, RngSeed};
 use std::fmt::Write;
 
 // ---------------------------------------------------------------------------
@@ -139,6 +170,8 @@ struct Writing {
     energy_offset_mhz: f64,
     time_shift_ns: f64,
     method: Option<&'static str>,
+    /// `solver.rtol` and `solver.atol`.
+    tolerances: Option<(f64, f64)>,
     /// Multiplies every Rabi frequency.
     rabi_scale: Option<f64>,
 }
@@ -271,8 +304,15 @@ fn yaml(spec: &Spec, w: &Writing) -> String {
         )
         .unwrap();
     }
+    let mut solver: Vec<String> = Vec::new();
     if let Some(m) = w.method {
-        writeln!(s, "solver: {{method: {m}}}").unwrap();
+        solver.push(format!("method: {m}"));
+    }
+    if let Some((rtol, atol)) = w.tolerances {
+        solver.push(format!("rtol: {rtol:e}, atol: {atol:e}"));
+    }
+    if !solver.is_empty() {
+        writeln!(s, "solver: {{{}}}", solver.join(", ")).unwrap();
     }
     s
 }
@@ -584,57 +624,182 @@ fn rounding_floor(a: &Model, b: &Model) -> f64 {
     drives.chain(transitions).fold(0.0, f64::max)
 }
 
-// ---------------------------------------------------------------------------
-// Properties
+/// Norm tolerance of the exact propagator: it makes no truncation error, so
+/// its norm error is rounding in the matrix exponentials and their products
+/// (measured below 1e-12 in `docs/physics.md`); 1e-9 leaves a wide margin.
+const EXACT_NORM_TOL: f64 = 1e-9;
 
-proptest! {
-    #![proptest_config(Config::with_cases(128))]
-
-    /// Without decay the evolution is unitary: sum P = 1 at every sample
-    /// (to 1e-9) and nothing is lost. Source: unitarity of the Schrodinger
-    /// equation with a Hermitian Hamiltonian (any quantum mechanics text).
-    #[test]
-    fn norm_is_one_without_decay(spec in spec_strategy(STRONG)) {
-        let text = yaml(&spec, &Writing::default());
-        let m = parse(&text);
-        let s = run(&m, 11).unwrap();
-        let sum: f64 = s.final_populations.iter().sum();
-        prop_assert!((sum - 1.0).abs() <= 1e-9, "final sum {sum}\n{text}");
-        prop_assert_eq!(s.lost, 0.0);
-        for (t, p) in &s.samples {
-            let sum: f64 = p.iter().sum();
-            prop_assert!((sum - 1.0).abs() <= 1e-9, "sum {} at t = {:e}\n{}", sum, t, text);
-        }
-        prop_assert!(s.norm_error <= 1e-9, "reported norm error {:e}", s.norm_error);
-        for (k, (&pk, &fin)) in s.peak_populations.iter().zip(&s.final_populations).enumerate() {
-            prop_assert!(pk <= 1.0 + 1e-9 && pk >= fin,
-                "level {}: peak {} final {}", k, pk, fin);
-        }
-    }
-
-    /// With decay, what leaves the levels is exactly what the loss integral
-    /// counts: sum P + lost = 1 to 1e-9. Source: d/dt sum |c_k|^2 =
-    /// -sum Gamma_k |c_k|^2 for H = H_herm - i Gamma/2 (Weisskopf-Wigner
-    /// decay terms; any quantum optics text).
-    #[test]
-    fn population_plus_loss_is_one_with_decay(
-        spec in spec_strategy(Gen { decay: true, ..STRONG })
-    ) {
-        let text = yaml(&spec, &Writing::default());
-        let m = parse(&text);
-        let s = run(&m, 0).unwrap();
-        let sum: f64 = s.final_populations.iter().sum();
-        prop_assert!((sum + s.lost - 1.0).abs() <= 1e-9,
-            "sum {} + lost {} = {}\n{}", sum, s.lost, sum + s.lost, text);
-        prop_assert!((0.0..=1.0).contains(&s.lost));
-        if m.levels.iter().all(|l| l.gamma == 0.0) {
-            prop_assert_eq!(s.lost, 0.0);
+/// How far |sum P + lost - 1| may drift in a run, by what each propagator
+/// promises (the sample populations, final populations and reported norm
+/// error are all held to it).
+///
+/// Exact: [`EXACT_NORM_TOL`]. Adaptive: what the error control of Dop853
+/// promises, summed over the accepted steps. Derivation:
+/// 1. Error control (ode_solvers 0.6.2 `Dop853`, the scheme of Hairer's
+///    DOP853): a step is accepted when the RMS over the d = 2N + 2 state
+///    components (N complex amplitudes, the lost population, the time) of
+///    est_i / sc_i is at most 1, with sc_i = atol + rtol max(|y_i|, |y_i'|).
+///    Every component is at most 1 here, so the estimated local error e_n of
+///    an accepted step has Euclidean length
+///    |e_n| <= sqrt(d) max_i sc_i <= eps = sqrt(d) (rtol + atol).
+///    The standard assumption of error control is that the true local error
+///    is not larger than its estimate (for Dop853 the estimate belongs to the
+///    embedded lower-order formulas and overestimates).
+/// 2. N(y) = sum_k |a_k|^2 + lost is conserved by the exact flow (unitarity
+///    without decay; with decay, d/dt sum |a|^2 = -d lost/dt). With y_n the
+///    step's result and Y_n the exact solution of the step from y_{n-1},
+///    N(Y_n) = N(y_{n-1}), so N(y_M) - N(y_0) = sum_n [N(y_n) - N(Y_n)]
+///    telescopes exactly: the drift of the invariant is the sum of what each
+///    local error does to it, however the errors are transported.
+/// 3. y_n = Y_n + e_n with |amplitudes of Y_n| <= 1 (+ the drift so far):
+///    |N(y_n) - N(Y_n)| <= 2 |e_amp| + |e_lost| + |e_amp|^2 <= 3 eps for
+///    eps <= 0.1 (2 without decay, where e_lost = 0).
+///
+/// Hence |sum P + lost - 1| <= 3 eps x accepted steps. Sources: the error
+/// norm and the acceptance test, E. Hairer, S. P. Norsett, G. Wanner,
+/// Solving Ordinary Differential Equations I, 2nd ed., sec. II.4 and II.10
+/// (from memory; the formula is also in ode_solvers' `dop853.rs`); the
+/// telescoping sum over local errors, common practice, no source. The bound
+/// grows linearly with the steps because the error is systematic: found by
+/// this property (the last seed in `properties.proptest-regressions`, see
+/// `norm_drift_of_a_long_free_rotation_is_integration_error`), where
+/// Dop853 loses 9e-13 of norm per step on every one of 1313 steps.
+/// Measured over generated schemes, the drift stays about 3 orders of
+/// magnitude inside the bound (see the module docs), so a small defect of
+/// the equations (a non-Hermitian term) is caught by
+/// [`tolerance_proportionality`] rather than by this bound.
+fn norm_bound(m: &Model, s: &Solution) -> f64 {
+    match s.method {
+        MethodUsed::Exact => EXACT_NORM_TOL,
+        MethodUsed::Adaptive => {
+            let d = (2 * m.levels.len() + 2) as f64;
+            let eps = d.sqrt() * (s.rtol + s.atol);
+            3.0 * eps * s.steps as f64
         }
     }
 }
 
+/// A norm drift of the adaptive propagator that is integration error falls
+/// when the tolerances fall (tolerance proportionality: the global error of
+/// an error-controlled integration scales about as the tolerance; Hairer,
+/// Norsett, Wanner I, sec. II.4, from memory); a defect of the equations
+/// does not. Where the drift exceeds [`EXACT_NORM_TOL`], the scheme is run
+/// again at rtol and atol / 100 and the drift must fall at least tenfold
+/// (measured on the regression seed: 1.18e-9 -> 6.4e-12, 180-fold).
+fn tolerance_proportionality(
+    spec: &Spec,
+    w: &Writing,
+    m: &Model,
+    s: &Solution,
+) -> Result<(), TestCaseError> {
+    if s.method != MethodUsed::Adaptive || s.norm_error <= EXACT_NORM_TOL {
+        return Ok(());
+    }
+    let text = yaml(
+        spec,
+        &Writing {
+            tolerances: Some((m.solver.rtol / 100.0, m.solver.atol / 100.0)),
+            ..w.clone()
+        },
+    );
+    let tight = run(&parse(&text), 0).unwrap();
+    prop_assert!(
+        tight.norm_error <= 0.1 * s.norm_error,
+        "norm error {:e} at rtol {:e} does not fall with the tolerance: {:e} at rtol {:e}\n{}",
+        s.norm_error,
+        s.rtol,
+        tight.norm_error,
+        tight.rtol,
+        text
+    );
+    Ok(())
+}
+
+/// The random cases of every property here are drawn from this fixed seed,
+/// so CI runs the same cases every time (after replaying
+/// `properties.proptest-regressions`). `PROPTEST_RNG_SEED` and
+/// `PROPTEST_CASES` override the seed and the case count (see the module
+/// docs for exploring with fresh seeds).
+const FIXED_SEED: u64 = 0x6c65_7665_6c70_6c61;
+
+/// Proptest configuration: `cases` cases from [`FIXED_SEED`], unless the
+/// environment asks otherwise.
+fn config(cases: u32) -> Config {
+    let mut c = Config::with_cases(cases);
+    if std::env::var_os("PROPTEST_CASES").is_some() {
+        c.cases = Config::default().cases;
+    }
+    if std::env::var_os("PROPTEST_RNG_SEED").is_none() {
+        c.rng_seed = RngSeed::Fixed(FIXED_SEED);
+    }
+    c
+}
+
+// ---------------------------------------------------------------------------
+// Properties
+
 proptest! {
-    #![proptest_config(Config::with_cases(64))]
+    #![proptest_config(config(128))]
+
+    /// Without decay the evolution is unitary: sum P = 1 at every sample
+    /// and nothing is lost. Source: unitarity of the Schrodinger equation
+    /// with a Hermitian Hamiltonian (any quantum mechanics text). Numerically
+    /// sum P drifts by at most what the propagator promises (`norm_bound`:
+    /// 1e-9 exact; adaptive, the error control summed over the steps), and
+    /// an adaptive drift beyond 1e-9 must fall with the tolerances
+    /// (`tolerance_proportionality`).
+    #[test]
+    fn norm_is_one_without_decay(spec in spec_strategy(STRONG)) {
+        let w = Writing::default();
+        let text = yaml(&spec, &w);
+        let m = parse(&text);
+        let s = run(&m, 11).unwrap();
+        let bound = norm_bound(&m, &s);
+        let sum: f64 = s.final_populations.iter().sum();
+        prop_assert!((sum - 1.0).abs() <= bound,
+            "final sum {} (bound {:e}, {:?}, {} steps)\n{}", sum, bound, s.method, s.steps, text);
+        prop_assert_eq!(s.lost, 0.0);
+        for (t, p) in &s.samples {
+            let sum: f64 = p.iter().sum();
+            prop_assert!((sum - 1.0).abs() <= bound,
+                "sum {} at t = {:e} (bound {:e})\n{}", sum, t, bound, text);
+        }
+        prop_assert!(s.norm_error <= bound, "reported norm error {:e} > {:e}", s.norm_error, bound);
+        for (k, (&pk, &fin)) in s.peak_populations.iter().zip(&s.final_populations).enumerate() {
+            prop_assert!(pk <= 1.0 + bound && pk >= fin,
+                "level {}: peak {} final {}", k, pk, fin);
+        }
+        tolerance_proportionality(&spec, &w, &m, &s)?;
+    }
+
+    /// With decay, what leaves the levels is exactly what the loss integral
+    /// counts: sum P + lost = 1 within what the propagator promises
+    /// (`norm_bound`; an adaptive drift beyond 1e-9 must fall with the
+    /// tolerances). Source: d/dt sum |c_k|^2 = -sum Gamma_k |c_k|^2 for
+    /// H = H_herm - i Gamma/2 (Weisskopf-Wigner decay terms; any quantum
+    /// optics text).
+    #[test]
+    fn population_plus_loss_is_one_with_decay(
+        spec in spec_strategy(Gen { decay: true, ..STRONG })
+    ) {
+        let w = Writing::default();
+        let text = yaml(&spec, &w);
+        let m = parse(&text);
+        let s = run(&m, 0).unwrap();
+        let bound = norm_bound(&m, &s);
+        let sum: f64 = s.final_populations.iter().sum();
+        prop_assert!((sum + s.lost - 1.0).abs() <= bound,
+            "sum {} + lost {} = {} (bound {:e})\n{}", sum, s.lost, sum + s.lost, bound, text);
+        prop_assert!((0.0..=1.0).contains(&s.lost));
+        if m.levels.iter().all(|l| l.gamma == 0.0) {
+            prop_assert_eq!(s.lost, 0.0);
+        }
+        tolerance_proportionality(&spec, &w, &m, &s)?;
+    }
+}
+
+proptest! {
+    #![proptest_config(config(64))]
 
     /// The order of levels, couplings and fields in the file, and the order
     /// of the two ids of `between`/`to`/`on`, describe the same physics:
@@ -718,6 +883,158 @@ proptest! {
     }
 }
 
+/// The case the norm property found (last seed of
+/// `properties.proptest-regressions`): l0 and l2 share the initial
+/// population and are joined through l1 by one field, so in every frame of
+/// the tree l0 turns at their energy difference (99.9 MHz) relative to l2;
+/// the sech pulse's tails (to f = 1e-8) make the window 760 ns long. The
+/// adaptive propagator takes 1313 steps over 76 turns of l0; on a freely
+/// turning amplitude a Dop853 step multiplies by a polynomial in -i delta h
+/// whose modulus is just below 1, so sum P falls by the same amount every
+/// step, linearly in time, to 1 - 1.18e-9 at the default tolerances. That
+/// is integration error within what the tolerances promise (`norm_bound`),
+/// not a defect: it is in l0 alone, it is uniform over the window (driven or
+/// not), and it falls with the tolerance (1.05e-10 at rtol 1e-11, 6.4e-12 at
+/// rtol 1e-12 and atol 1e-14). The same scheme integrated independently
+/// (SciPy `solve_ivp` DOP853, done for this test) in the solver's frame
+/// loses 1.08e-9 over 1409 steps at rtol 1e-10; in the interaction picture
+/// of the bare energies, where nothing turns freely, its norm stays 1 to
+/// 1e-15 at rtol 1e-13, atol 1e-15: the check values below come from that
+/// run.
+#[test]
+fn norm_drift_of_a_long_free_rotation_is_integration_error() {
+    const SCHEME: &str = r#"
+levels:
+  l0: {energy: "0 MHz"}
+  l1: {energy: "410123456 MHz"}
+  l2: {energy: "-99.9140625 MHz"}
+  l3: {energy: "410123456 MHz"}
+  l4: {energy: "410123456 MHz"}
+  l5: {energy: "410123456 MHz"}
+  l6: {energy: "733987654 MHz"}
+initial: {l0: 0.44509077065358815, l2: 0.5549092293464118}
+couplings:
+  - {between: [l0, l1], dipole: 0.2, fields: [f0]}
+  - {between: [l1, l2], dipole: 0.2, fields: [f0]}
+  - {between: [l0, l3], dipole: 0.2, fields: [f0]}
+  - {between: [l2, l4], dipole: 0.2, fields: [f0]}
+  - {between: [l0, l5], dipole: 0.2, fields: [f0]}
+  - {between: [l3, l6], dipole: 0.2, fields: [f1]}
+fields:
+  f0:
+    tuned: {to: [l0, l1], detuning: "37.3343880135253 MHz"}
+    rabi: {on: [l0, l1], value: "2 MHz"}
+    envelope: {shape: rectangular, start: "0 ns", duration: "20 ns"}
+  f1:
+    frequency: "323864179.6216569 MHz"
+    rabi: {on: [l3, l6], value: "8.977407544271383 MHz"}
+    envelope: {shape: sech, center: "73.03410999066371 ns", tau: "19.89385210594255 ns"}
+"#;
+    // Independent integration (see above), populations of l0..l6.
+    const INDEPENDENT: [f64; 7] = [
+        0.443_443_442_057_656_07,
+        0.001_213_439_168_819_932_8,
+        0.553_791_588_285_508_5,
+        0.000_625_879_990_890_119_8,
+        0.000_287_448_232_649_823_44,
+        0.000_631_704_847_137_660_4,
+        6.497_417_338_015_393e-6,
+    ];
+    let m = parse(SCHEME);
+    let s = run(&m, 11).unwrap();
+    assert_eq!(s.method, MethodUsed::Adaptive);
+    let drift = 1.0 - s.final_populations.iter().sum::<f64>();
+    // The drift exists (the old fixed 1e-9 was too tight) and stays within
+    // the promise.
+    assert!(
+        drift > 1e-10 && drift <= norm_bound(&m, &s),
+        "drift {drift:e}"
+    );
+    assert!((s.norm_error - drift).abs() <= 1e-15);
+    // All of it is in l0, the level that turns; the others agree with the
+    // independent integration far below the drift.
+    let l0 = INDEPENDENT[0] - s.final_populations[0];
+    assert!(
+        (l0 - drift).abs() <= 0.05 * drift,
+        "l0 {l0:e} vs drift {drift:e}"
+    );
+    for (k, (p, q)) in s
+        .final_populations
+        .iter()
+        .zip(INDEPENDENT)
+        .enumerate()
+        .skip(1)
+    {
+        let d = (p - q).abs();
+        assert!(d <= 1e-11, "l{k}: {d:e}");
+    }
+    // Linear in time: the same loss per unit time, driven or not (11 evenly
+    // spaced samples; the pulses act near the middle of the window).
+    for (i, (_, p)) in s.samples.iter().enumerate() {
+        let lost_so_far = 1.0 - p.iter().sum::<f64>();
+        let expected = drift * i as f64 / 10.0;
+        assert!(
+            (lost_so_far - expected).abs() <= 0.05 * drift,
+            "sample {i}: {lost_so_far:e} vs {expected:e}"
+        );
+    }
+    // Tighter tolerances: the drift falls with them and every population
+    // converges to the independent integration.
+    let tight = parse(&format!("{SCHEME}solver: {{rtol: 1e-12, atol: 1e-14}}\n"));
+    let st = run(&tight, 0).unwrap();
+    assert!(
+        st.norm_error <= 0.01 * drift,
+        "tight drift {:e}",
+        st.norm_error
+    );
+    for (k, (p, q)) in st.final_populations.iter().zip(INDEPENDENT).enumerate() {
+        let d = (p - q).abs();
+        assert!(d <= 3e-11, "l{k} at rtol 1e-12: {d:e}");
+    }
+}
+
+/// Measurement behind the numbers in the module docs, run by hand
+/// (`cargo test --release --test properties measure_norm_margin -- --ignored
+/// --nocapture`): the norm drift of the adaptive propagator against
+/// `norm_bound` over 3000 generated schemes with and without decay.
+#[test]
+#[ignore = "measurement, run by hand"]
+fn measure_norm_margin() {
+    use proptest::strategy::ValueTree;
+    use proptest::test_runner::TestRunner;
+    for decay in [false, true] {
+        let mut runner = TestRunner::new(Config {
+            rng_seed: RngSeed::Fixed(12345),
+            ..Config::default()
+        });
+        let strat = spec_strategy(Gen { decay, ..STRONG });
+        let (mut of_bound, mut largest, mut per_step) = (0.0f64, 0.0f64, 0.0f64);
+        let (mut adaptive, mut above) = (0, 0);
+        for _ in 0..3000 {
+            let spec = strat.new_tree(&mut runner).unwrap().current();
+            let m = parse(&yaml(&spec, &Writing::default()));
+            let s = run(&m, 0).unwrap();
+            if s.method != MethodUsed::Adaptive {
+                continue;
+            }
+            adaptive += 1;
+            let sum: f64 = s.final_populations.iter().sum::<f64>() + s.lost;
+            let drift = (sum - 1.0).abs().max(s.norm_error);
+            of_bound = of_bound.max(drift / norm_bound(&m, &s));
+            largest = largest.max(drift);
+            per_step = per_step.max(drift / (s.steps as f64 * s.rtol));
+            if drift > EXACT_NORM_TOL {
+                above += 1;
+            }
+        }
+        println!(
+            "decay {decay}: {adaptive} adaptive; largest drift {largest:e}; \
+             drift / bound <= {of_bound:e}; drift / (steps rtol) <= {per_step:e}; \
+             above 1e-9: {above}"
+        );
+    }
+}
+
 /// Bound on the Dyson remainder beyond order `order`: with
 /// A = integral of ||V(t)|| dt, the n-th Dyson term is at most A^n / n!, so
 /// the amplitude neglected by an estimate of order `order` is at most
@@ -746,7 +1063,7 @@ fn drive_area_bound(m: &Model) -> f64 {
 }
 
 proptest! {
-    #![proptest_config(Config::with_cases(128))]
+    #![proptest_config(config(128))]
 
     /// Weak drives: every population stays below 1e-4, and the estimate of
     /// each level (first order, or second where first order vanishes)
