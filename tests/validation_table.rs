@@ -11,7 +11,7 @@
 //!
 //! The physics test files: `tests/units_constants.rs`, `tests/propagation_*.rs`,
 //! `tests/estimate*.rs`, `tests/vet_physics.rs`, `tests/demo_schemes.rs`, and
-//! the unit tests of `src/model/**`, `src/units.rs`, `src/hamiltonian.rs`,
+//! the unit tests of `src/model/**`, `src/units/mod.rs`, `src/hamiltonian.rs`,
 //! `src/report.rs`, `src/tune.rs`, `src/solve/*.rs`, `src/estimate/*.rs`.
 //! New files matching these patterns are covered automatically.
 
@@ -80,8 +80,8 @@ const NOT_PHYSICS: &[(&str, &str)] = &[
         "tests/estimate.rs::the_builder_refuses_what_the_estimator_would",
         "error path",
     ),
-    ("src/units.rs::splits_sign_exponent_and_unit", "parsing"),
-    ("src/units.rs::wrong_dimension_names_both", "error messages"),
+    ("src/units/mod.rs::splits_sign_exponent_and_unit", "parsing"),
+    ("src/units/mod.rs::wrong_dimension_names_both", "error messages"),
     (
         "src/solve/plan.rs::samples_end_exactly",
         "sample bookkeeping",
@@ -147,7 +147,7 @@ fn physics_files() -> Vec<String> {
         }
     }
     for f in [
-        "src/units.rs",
+        "src/units/mod.rs",
         "src/hamiltonian.rs",
         "src/report.rs",
         "src/tune.rs",
