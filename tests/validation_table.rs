@@ -81,7 +81,10 @@ const NOT_PHYSICS: &[(&str, &str)] = &[
         "error path",
     ),
     ("src/units/mod.rs::splits_sign_exponent_and_unit", "parsing"),
-    ("src/units/mod.rs::wrong_dimension_names_both", "error messages"),
+    (
+        "src/units/mod.rs::wrong_dimension_names_both",
+        "error messages",
+    ),
     (
         "src/solve/plan.rs::samples_end_exactly",
         "sample bookkeeping",
