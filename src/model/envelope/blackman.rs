@@ -124,11 +124,8 @@ impl Shape for Blackman {
     }
 
     fn stretched(&self, s: f64) -> Envelope {
-        let c = self.center();
-        Envelope::Blackman {
-            start: c + s * (self.start - c),
-            duration: self.duration * s,
-        }
+        let (start, duration) = super::stretched_span(self.start, self.duration, self.center(), s);
+        Envelope::Blackman { start, duration }
     }
 
     fn has_oscillating_line(&self) -> bool {
@@ -136,7 +133,6 @@ impl Shape for Blackman {
     }
 
     fn check(&self) -> Result<(), String> {
-        super::finite(self.start, "start")?;
-        super::positive(self.duration, "duration")
+        super::check_span(self.start, self.duration)
     }
 }

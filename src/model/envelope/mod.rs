@@ -257,6 +257,19 @@ fn finite(x: f64, what: &str) -> Result<(), String> {
     }
 }
 
+/// The start and duration of a pulse of finite support stretched by `s`
+/// about its centre `c` (the remedies' longer pulse of the same shape).
+fn stretched_span(start: f64, duration: f64, c: f64, s: f64) -> (f64, f64) {
+    (c + s * (start - c), duration * s)
+}
+
+/// The checks of a pulse of finite support: a finite start, a positive
+/// finite duration.
+fn check_span(start: f64, duration: f64) -> Result<(), String> {
+    finite(start, "start")?;
+    positive(duration, "duration")
+}
+
 /// `Ok` for a positive finite number, else a message naming it.
 fn positive(x: f64, what: &str) -> Result<(), String> {
     if x.is_finite() && x > 0.0 {

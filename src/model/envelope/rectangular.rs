@@ -70,11 +70,8 @@ impl Shape for Rectangular {
     }
 
     fn stretched(&self, s: f64) -> Envelope {
-        let c = self.center();
-        Envelope::Rectangular {
-            start: c + s * (self.start - c),
-            duration: self.duration * s,
-        }
+        let (start, duration) = super::stretched_span(self.start, self.duration, self.center(), s);
+        Envelope::Rectangular { start, duration }
     }
 
     fn has_oscillating_line(&self) -> bool {
@@ -82,7 +79,6 @@ impl Shape for Rectangular {
     }
 
     fn check(&self) -> Result<(), String> {
-        super::finite(self.start, "start")?;
-        super::positive(self.duration, "duration")
+        super::check_span(self.start, self.duration)
     }
 }

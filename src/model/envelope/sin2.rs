@@ -81,11 +81,8 @@ impl Shape for Sin2 {
     }
 
     fn stretched(&self, s: f64) -> Envelope {
-        let c = self.center();
-        Envelope::Sin2 {
-            start: c + s * (self.start - c),
-            duration: self.duration * s,
-        }
+        let (start, duration) = super::stretched_span(self.start, self.duration, self.center(), s);
+        Envelope::Sin2 { start, duration }
     }
 
     fn has_oscillating_line(&self) -> bool {
@@ -93,7 +90,6 @@ impl Shape for Sin2 {
     }
 
     fn check(&self) -> Result<(), String> {
-        super::finite(self.start, "start")?;
-        super::positive(self.duration, "duration")
+        super::check_span(self.start, self.duration)
     }
 }

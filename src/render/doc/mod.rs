@@ -149,6 +149,18 @@ fn short_hash(h: &str) -> &str {
     h.get(..12).unwrap_or(h)
 }
 
+/// The meta line of a report's time window.
+fn window_meta(window: (f64, f64)) -> (String, String) {
+    (
+        "window".into(),
+        format!(
+            "{} to {}",
+            numfmt::time(window.0).plain(),
+            numfmt::time(window.1).plain()
+        ),
+    )
+}
+
 fn provenance_meta(tool: &str, version: &str, file: &str, hash: &str) -> Vec<(String, String)> {
     vec![
         ("tool".into(), format!("{tool} {version}")),
@@ -191,14 +203,7 @@ pub fn inspect_doc(r: &InspectReport) -> Doc {
         &r.provenance.scheme_file,
         &r.provenance.scheme_sha256,
     );
-    meta.push((
-        "window".into(),
-        format!(
-            "{} to {}",
-            numfmt::time(r.window.0).plain(),
-            numfmt::time(r.window.1).plain()
-        ),
-    ));
+    meta.push(window_meta(r.window));
     meta.push((
         "detuning cutoff".into(),
         numfmt::frequency(r.detuning_cutoff / TWO_PI, false).plain(),

@@ -5,8 +5,8 @@
 //! compute (every number comes from the report) or pick a format.
 
 use super::{
-    method_name, numfmt, order_name, provenance_meta, safety_section, table, Align, Cell, Doc,
-    Mark, Section, MODEL_TEXT, TWO_PI,
+    method_name, numfmt, order_name, provenance_meta, safety_section, table, window_meta, Align,
+    Cell, Doc, Mark, Section, MODEL_TEXT, TWO_PI,
 };
 use crate::report::{LevelRow, RemedyRow, Role, VetReport};
 
@@ -60,14 +60,7 @@ fn vet_meta(r: &VetReport) -> Vec<(String, String)> {
             numfmt::frequency(r.solver.detuning_cutoff / TWO_PI, false).plain()
         ),
     ));
-    meta.push((
-        "window".into(),
-        format!(
-            "{} to {}",
-            numfmt::time(r.window.0).plain(),
-            numfmt::time(r.window.1).plain()
-        ),
-    ));
+    meta.push(window_meta(r.window));
     meta.push((
         "spectator tolerance".into(),
         numfmt::population(r.tolerance).plain(),
