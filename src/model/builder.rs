@@ -85,6 +85,23 @@ impl Model {
     pub fn builder() -> ModelBuilder {
         ModelBuilder::new()
     }
+
+    /// A builder holding this model's parts, window and settings: the one
+    /// way to a changed model, since `build` checks the changed parts again.
+    pub fn to_builder(&self) -> ModelBuilder {
+        ModelBuilder {
+            title: self.title.clone(),
+            levels: self.levels.clone(),
+            couplings: self.couplings.clone(),
+            fields: self.fields.clone(),
+            drives: self.drives.clone(),
+            initial: Some(self.initial.clone()),
+            targets: self.targets.clone(),
+            tolerance: Some(self.tolerance),
+            window: Some(self.window),
+            solver: self.solver,
+        }
+    }
 }
 
 impl ModelBuilder {
