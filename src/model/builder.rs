@@ -3,8 +3,10 @@
 //! Owns: [`ModelBuilder`], [`ModelError`] and the invariants every model
 //! keeps (finite numbers, indices in range, couplings ordered by energy,
 //! populations summing to 1, targets not initially populated, one drive per
-//! field and level pair, a window that ends after it starts, positive
-//! solver tolerances). Scheme validation ends here too: it reports the
+//! field and level pair, envelopes with a duration, a window that ends
+//! after it starts, positive finite solver tolerances). These are the only
+//! consistency checks of a model: the Hamiltonian assembly, the propagators
+//! and the estimator rely on them and check only the numbers they compute. Scheme validation ends here too: it reports the
 //! problems of a file with their place in it first, then hands the parts to
 //! this builder, so a model passes these checks whichever way it was made.
 //!
@@ -258,6 +260,10 @@ fn non_finite(m: &Model) -> Vec<ModelError> {
     {
         bad(Part::Window);
     }
+    let s = &m.solver;
+    if !(s.rtol.is_finite() && s.atol.is_finite() && s.detuning_cutoff.is_finite()) {
+        bad(Part::Solver);
+    }
     out
 }
 
@@ -309,6 +315,12 @@ fn invariants(m: &Model, out: &mut Vec<ModelError>) {
         }
         if let Err(reason) = f.envelope.check() {
             invalid(out, Part::Envelope(i), reason);
+        } else if f.envelope.shortest_feature() <= 0.0 {
+            invalid(
+                out,
+                Part::Envelope(i),
+                "no duration (its shortest feature is 0)",
+            );
         } else if let super::Envelope::Samples { values, .. } = &f.envelope {
             if values.iter().any(|v| *v < 0.0) {
                 invalid(out, Part::Envelope(i), "a negative sample value");
@@ -327,6 +339,13 @@ fn invariants(m: &Model, out: &mut Vec<ModelError>) {
     if !(s.rtol > 0.0 && s.atol > 0.0 && s.detuning_cutoff > 0.0) {
         invalid(out, Part::Solver, "tolerances and cutoff must be positive");
     }
+}
+
+/// Whether a checked envelope has a finite, positive shortest feature and a
+/// finite peak value (a duration so small it underflows has neither).
+fn envelope_has_scale(e: &super::Envelope) -> bool {
+    let s = e.shortest_feature();
+    s.is_finite() && s > 0.0 && e.value(e.center()).is_finite()
 }
 
 fn couplings(m: &Model, out: &mut Vec<ModelError>) {

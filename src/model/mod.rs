@@ -240,7 +240,15 @@ impl Model {
     /// multiplied by `chirp_scale`; every drive of that field keeps its pulse
     /// area (its Rabi frequency is rescaled), and the window is widened to
     /// hold the new envelope. Used to check remedies by exact propagation.
-    pub fn with_field_envelope(&self, field: usize, env: Envelope, chirp_scale: f64) -> Model {
+    /// The copy is built again through [`ModelBuilder`], so it keeps every
+    /// invariant or is refused (a new envelope that is not valid, a rescaled
+    /// Rabi frequency that overflows).
+    pub fn with_field_envelope(
+        &self,
+        field: usize,
+        env: Envelope,
+        chirp_scale: f64,
+    ) -> Result<Model, ModelError> {
         let mut m = self.clone();
         let old = m.fields[field].envelope.area();
         let new = env.area();
@@ -256,7 +264,7 @@ impl Model {
         for d in m.drives.iter_mut().filter(|d| d.field == field) {
             d.rabi *= factor;
         }
-        m
+        m.to_builder().build()
     }
 
     /// Index of a level by id.

@@ -115,8 +115,6 @@ pub enum SolveError {
     NonFinite { stage: String },
     #[error("integrator failed: {0}")]
     Integrator(String),
-    #[error("the model cannot be propagated: {reason}")]
-    InvalidModel { reason: String },
 }
 
 /// Propagate the model over its window with the method its settings ask for.
@@ -130,16 +128,7 @@ pub fn solve(model: &Model, opts: &SolveOptions) -> Result<Solution, SolveError>
         AssemblyError::NonFinite(what) => SolveError::NonFinite {
             stage: format!("Hamiltonian assembly ({what})"),
         },
-        AssemblyError::Inconsistent(reason) => SolveError::InvalidModel { reason },
     })?;
-    let (rtol, atol) = (model.solver.rtol, model.solver.atol);
-    if !(rtol.is_finite() && rtol > 0.0 && atol.is_finite() && atol > 0.0) {
-        return Err(SolveError::InvalidModel {
-            reason: format!(
-                "tolerances must be positive and finite (rtol {rtol:e}, atol {atol:e})"
-            ),
-        });
-    }
     let obstacle = fh.piecewise_constant_obstacle(model);
     let method = match (model.solver.method, &obstacle) {
         (Method::Exact, Some(reason)) => {
