@@ -37,8 +37,8 @@ const NOT_PHYSICS: &[(&str, &str)] = &[
         "error path",
     ),
     (
-        "tests/propagation_budget.rs::empty_window_returns_the_initial_state",
-        "edge case of the window",
+        "tests/propagation_budget.rs::empty_window_is_refused_by_the_builder",
+        "error path",
     ),
     (
         "tests/propagation_dop853.rs::naive_dop853_with_time_dependent_rhs_is_wrong",
@@ -74,10 +74,6 @@ const NOT_PHYSICS: &[(&str, &str)] = &[
     ),
     (
         "src/model/builder.rs::broken_invariants_are_typed_errors",
-        "error path",
-    ),
-    (
-        "tests/estimate.rs::the_builder_refuses_what_the_estimator_would",
         "error path",
     ),
     ("src/units/mod.rs::splits_sign_exponent_and_unit", "parsing"),

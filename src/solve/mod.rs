@@ -140,12 +140,9 @@ pub fn solve(model: &Model, opts: &SolveOptions) -> Result<Solution, SolveError>
         (Method::Adaptive, _) | (Method::Auto, Some(_)) => MethodUsed::Adaptive,
     };
     let plan = plan::Plan::new(model, &fh, opts.samples);
-    let solution = if fh.duration == 0.0 {
-        trivial(model, &fh, &plan, method)
-    } else {
-        let mut eq = Amplitudes::new(model, &fh);
-        run(&mut eq, model, &fh, &plan, method, opts)?
-    };
+    // The window ends after it starts (the model's builder checked it).
+    let mut eq = Amplitudes::new(model, &fh);
+    let solution = run(&mut eq, model, &fh, &plan, method, opts)?;
     let finite = solution
         .final_populations
         .iter()
@@ -209,31 +206,6 @@ fn run<E: Equation>(
         excluded_drives: fh.excluded.clone(),
         samples: obs.samples.taken,
     })
-}
-
-/// An empty window: the initial populations.
-fn trivial(
-    model: &Model,
-    fh: &FrameHamiltonian,
-    plan: &plan::Plan,
-    method: MethodUsed,
-) -> Solution {
-    let p = model.initial.clone();
-    Solution {
-        method,
-        final_populations: p.clone(),
-        peak_populations: p.clone(),
-        lost: 0.0,
-        norm_error: 0.0,
-        steps: 0,
-        evaluations: 0,
-        rtol: model.solver.rtol,
-        atol: model.solver.atol,
-        excluded_drives: fh.excluded.clone(),
-        samples: (0..plan.samples)
-            .map(|_| (model.window.end, p.clone()))
-            .collect(),
-    }
 }
 
 #[cfg(test)]
