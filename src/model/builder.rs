@@ -315,12 +315,8 @@ fn invariants(m: &Model, out: &mut Vec<ModelError>) {
         }
         if let Err(reason) = f.envelope.check() {
             invalid(out, Part::Envelope(i), reason);
-        } else if f.envelope.shortest_feature() <= 0.0 {
-            invalid(
-                out,
-                Part::Envelope(i),
-                "no duration (its shortest feature is 0)",
-            );
+        } else if !envelope_has_scale(&f.envelope) {
+            invalid(out, Part::Envelope(i), "no finite, nonzero time scale");
         } else if let super::Envelope::Samples { values, .. } = &f.envelope {
             if values.iter().any(|v| *v < 0.0) {
                 invalid(out, Part::Envelope(i), "a negative sample value");
@@ -464,6 +460,42 @@ mod tests {
             }
         );
         assert_eq!(m.tolerance, DEFAULT_TOLERANCE);
+    }
+
+    // The checks the propagators and the estimator no longer repeat: finite
+    // solver settings, and an envelope whose shortest feature does not
+    // underflow to 0 (a Blackman pulse of the smallest subnormal duration).
+    #[test]
+    fn solver_settings_and_envelope_scales_are_checked() {
+        let solver = SolverSettings {
+            rtol: f64::INFINITY,
+            ..SolverSettings::default()
+        };
+        let e = two_level().solver(solver).build().unwrap_err();
+        assert_eq!(e, ModelError::NonFinite { at: Part::Solver });
+        let m = two_level().build().unwrap();
+        let mut fields = m.fields().to_vec();
+        fields[0].envelope = Envelope::Blackman {
+            start: 0.0,
+            duration: 5e-324,
+        };
+        let e = m
+            .to_builder()
+            .fields(fields)
+            .window(m.window())
+            .build()
+            .unwrap_err();
+        assert!(
+            matches!(
+                e,
+                ModelError::Invalid {
+                    at: Part::Envelope(0),
+                    ..
+                }
+            ),
+            "{e}"
+        );
+        assert_eq!(m.to_builder().build(), Ok(m));
     }
 
     #[test]
