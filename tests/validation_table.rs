@@ -76,6 +76,10 @@ const NOT_PHYSICS: &[(&str, &str)] = &[
         "src/model/builder.rs::broken_invariants_are_typed_errors",
         "error path",
     ),
+    (
+        "src/model/builder.rs::solver_settings_and_envelope_scales_are_checked",
+        "error path",
+    ),
     ("src/units/mod.rs::splits_sign_exponent_and_unit", "parsing"),
     (
         "src/units/mod.rs::wrong_dimension_names_both",
