@@ -95,8 +95,8 @@ fn report(name: &str, m: &Model) {
     eprintln!(
         "stats {name}: method {:?}, levels {}, drives {}, steps {}, evaluations {}, norm error {:.1e}",
         s.method,
-        m.levels.len(),
-        m.drives.len(),
+        m.levels().len(),
+        m.drives().len(),
         s.steps,
         s.evaluations,
         s.norm_error

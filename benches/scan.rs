@@ -49,7 +49,7 @@ fn bench_scan(c: &mut Criterion) {
     );
     let specs = parse_specs(&[vary], true, false).expect("a valid --vary");
     let grid = Grid::new(study.axes(&specs, false, 1).expect("axes"), false).expect("grid");
-    let n_levels = study.preflight(&grid).expect("preflight").levels.len();
+    let n_levels = study.preflight(&grid).expect("preflight").levels().len();
     let mut group = c.benchmark_group("scan_1001_points");
     group.sample_size(10);
     group.measurement_time(Duration::from_secs(30));

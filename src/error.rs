@@ -24,6 +24,10 @@ pub enum Error {
     Solve(#[from] crate::solve::SolveError),
     #[error("{0}")]
     Estimate(#[from] crate::estimate::EstimateError),
+    /// A model the library derives (a remedy's changed pulse) that its
+    /// builder refuses; a scheme's own problems are `Scheme` errors.
+    #[error("a changed model was refused: {0}")]
+    Model(#[from] crate::model::ModelError),
     #[error("{what}: {message}")]
     BadArgument { what: String, message: String },
     #[error("could not write {path}: {source}")]

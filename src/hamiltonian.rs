@@ -125,13 +125,13 @@ pub struct FrameHamiltonian {
     pub tree: Vec<usize>,
 }
 
-/// Why assembly failed.
+/// Why assembly failed: a computed number (a frame coupling or detuning)
+/// is not finite. The model's own numbers and indices are not checked
+/// here: a [`Model`] exists only through its builder, which checked them.
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]
 pub enum AssemblyError {
     #[error("non-finite value: {0}")]
     NonFinite(String),
-    #[error("inconsistent model: {0}")]
-    Inconsistent(String),
 }
 
 /// Residual phases whose total change over the window is below this (rad)
@@ -147,14 +147,6 @@ pub struct FastestScale {
     pub cause: String,
 }
 
-fn finite(x: f64, what: impl FnOnce() -> String) -> Result<(), AssemblyError> {
-    if x.is_finite() {
-        Ok(())
-    } else {
-        Err(AssemblyError::NonFinite(what()))
-    }
-}
-
 /// Name of a drive for messages: "field 'f' on a-b".
 pub fn drive_name(model: &Model, drive: usize) -> String {
     let d = &model.drives[drive];
@@ -163,85 +155,6 @@ pub fn drive_name(model: &Model, drive: usize) -> String {
         "field '{}' on {}-{}",
         model.fields[d.field].id, model.levels[c.lower].id, model.levels[c.upper].id
     )
-}
-
-/// Check every index and number the assembly uses.
-fn check_model(model: &Model) -> Result<(), AssemblyError> {
-    let n = model.levels.len();
-    if n == 0 {
-        return Err(AssemblyError::Inconsistent("no levels".into()));
-    }
-    if model.initial.len() != n {
-        return Err(AssemblyError::Inconsistent(format!(
-            "{} initial populations for {} levels",
-            model.initial.len(),
-            n
-        )));
-    }
-    for l in &model.levels {
-        finite(l.omega, || format!("energy of level '{}'", l.id))?;
-        finite(l.gamma, || format!("decay rate of level '{}'", l.id))?;
-        if l.gamma < 0.0 {
-            return Err(AssemblyError::Inconsistent(format!(
-                "negative decay rate of level '{}'",
-                l.id
-            )));
-        }
-    }
-    for (i, p) in model.initial.iter().enumerate() {
-        finite(*p, || {
-            format!("initial population of level '{}'", model.levels[i].id)
-        })?;
-        if *p < 0.0 {
-            return Err(AssemblyError::Inconsistent(format!(
-                "negative initial population of level '{}'",
-                model.levels[i].id
-            )));
-        }
-    }
-    for (i, c) in model.couplings.iter().enumerate() {
-        if c.lower >= n || c.upper >= n || c.lower == c.upper {
-            return Err(AssemblyError::Inconsistent(format!(
-                "coupling {i} names bad levels"
-            )));
-        }
-    }
-    for f in &model.fields {
-        let e = &f.envelope;
-        let (a, b) = e.support();
-        finite(
-            e.value(e.center()) + e.area() + a + b + e.shortest_feature(),
-            || format!("envelope of field '{}'", f.id),
-        )?;
-        if e.shortest_feature() <= 0.0 {
-            return Err(AssemblyError::Inconsistent(format!(
-                "the {} envelope of field '{}' has no duration",
-                e.shape_name(),
-                f.id
-            )));
-        }
-        finite(f.omega, || format!("frequency of field '{}'", f.id))?;
-        finite(f.chirp, || format!("chirp of field '{}'", f.id))?;
-        finite(f.phase, || format!("phase of field '{}'", f.id))?;
-    }
-    for (i, d) in model.drives.iter().enumerate() {
-        if d.field >= model.fields.len() || d.coupling >= model.couplings.len() {
-            return Err(AssemblyError::Inconsistent(format!(
-                "drive {i} names a bad field or coupling"
-            )));
-        }
-        finite(d.rabi, || {
-            format!("Rabi frequency of {}", drive_name(model, i))
-        })?;
-    }
-    finite(model.window.start, || "window start".into())?;
-    finite(model.window.end, || "window end".into())?;
-    if model.window.end < model.window.start {
-        return Err(AssemblyError::Inconsistent(
-            "window ends before it starts".into(),
-        ));
-    }
-    Ok(())
 }
 
 /// Phase of a drive's field as a polynomial around t0: (phi(t0) mod 2 pi,
@@ -428,7 +341,6 @@ fn check_frame(model: &Model, terms: &[Term], levels: &[FrameLevel]) -> Result<(
 impl FrameHamiltonian {
     /// Assemble the frame Hamiltonian of a model.
     pub fn build(model: &Model) -> Result<Self, AssemblyError> {
-        check_model(model)?;
         let n = model.levels.len();
         let t0 = model.window.start;
         let duration = model.window.duration();

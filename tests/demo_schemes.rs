@@ -41,7 +41,7 @@ fn every_demo_parses_and_is_labelled_illustrative() {
         }
         let (m, src) = read(&p);
         assert!(
-            !m.levels.is_empty() && !m.fields.is_empty(),
+            !m.levels().is_empty() && !m.fields().is_empty(),
             "{}",
             p.display()
         );
@@ -65,39 +65,42 @@ fn every_demo_parses_and_is_labelled_illustrative() {
 #[test]
 fn calibration_is_a_resonant_rectangular_pi_pulse() {
     let m = load("two_level_calibration.yaml");
-    assert_eq!(m.drives.len(), 1);
-    let d = &m.drives[0];
+    assert_eq!(m.drives().len(), 1);
+    let d = &m.drives()[0];
     // Omega/2pi = 5 MHz for 100 ns: area pi.
     assert_relative_eq!(m.pulse_area(d), PI, max_relative = 1e-12);
     assert_eq!(m.detuning(d), 0.0);
-    assert!(m.fields.iter().all(|f| f.envelope.is_piecewise_constant()));
-    assert_eq!(m.solver.method, levelplan::model::Method::Exact);
+    assert!(m
+        .fields()
+        .iter()
+        .all(|f| f.envelope.is_piecewise_constant()));
+    assert_eq!(m.solver().method, levelplan::model::Method::Exact);
     // 24512.37 cm^-1 is 407.96 nm in vacuum.
     let lambda = levelplan::units::wavelength_from_omega(m.transition_omega(0));
     assert_relative_eq!(lambda, 1e-2 / 24_512.37, max_relative = 1e-12);
     // lifetime 2.4 us
     assert_relative_eq!(
-        m.levels[idx(&m, "e")].gamma,
+        m.levels()[idx(&m, "e")].gamma,
         1.0 / 2.4e-6,
         max_relative = 1e-12
     );
     // An absolute dipole: the intensity of the pi pulse is known.
-    assert!(m.fields[0].peak_intensity.is_some());
+    assert!(m.fields()[0].peak_intensity.is_some());
 }
 
 #[test]
 fn hyperfine_spectators_and_tolerances() {
     let m = load("hyperfine_manifold.yaml");
     let g = idx(&m, "g");
-    assert_eq!(m.targets, vec![idx(&m, "e3")]);
-    assert_eq!(m.drives.len(), 4);
+    assert_eq!(m.targets(), vec![idx(&m, "e3")]);
+    assert_eq!(m.drives().len(), 4);
     // Detunings of the one field from each g -> ek line (MHz).
     // The field sits on e3, the highest level: blue of e0..e2.
     let expect = [("e0", 496.0), ("e1", 424.0), ("e2", 267.0), ("e3", 0.0)];
     for (k, (id, det)) in expect.iter().enumerate() {
-        let d = &m.drives[k];
-        assert_eq!(m.couplings[d.coupling].lower, g);
-        assert_eq!(m.couplings[d.coupling].upper, idx(&m, id));
+        let d = &m.drives()[k];
+        assert_eq!(m.couplings()[d.coupling].lower, g);
+        assert_eq!(m.couplings()[d.coupling].upper, idx(&m, id));
         assert!(
             (mhz(m.detuning(d)) - det).abs() < 1e-3,
             "{id}: {}",
@@ -105,16 +108,16 @@ fn hyperfine_spectators_and_tolerances() {
         );
     }
     // pi on g -> e3; the others scale by their dipoles (e1 is negative).
-    assert_relative_eq!(m.pulse_area(&m.drives[3]), PI, max_relative = 1e-12);
+    assert_relative_eq!(m.pulse_area(&m.drives()[3]), PI, max_relative = 1e-12);
     assert_relative_eq!(
-        m.drives[1].rabi / m.drives[3].rabi,
+        m.drives()[1].rabi / m.drives()[3].rabi,
         -1.1 / 2.4,
         max_relative = 1e-12
     );
     assert_relative_eq!(m.tolerance_of(idx(&m, "e2")), 5e-4);
     assert_relative_eq!(m.tolerance_of(idx(&m, "e0")), 1e-3);
     // Peak Omega/2pi about 130 MHz, as the header says.
-    let peak = mhz(m.drives[3].rabi);
+    let peak = mhz(m.drives()[3].rabi);
     assert!((125.0..140.0).contains(&peak), "{peak}");
 }
 
@@ -123,20 +126,20 @@ fn ladder_is_on_two_photon_resonance_with_far_drives_cut() {
     let m = load("ladder_two_step.yaml");
     let (g, u) = (idx(&m, "g"), idx(&m, "u"));
     // omega_1 + omega_2 = omega_u - omega_g.
-    let sum = m.fields[0].omega + m.fields[1].omega;
-    assert!(((sum - (m.levels[u].omega - m.levels[g].omega)) / TWO_PI).abs() < 1.0);
+    let sum = m.fields()[0].omega + m.fields()[1].omega;
+    assert!(((sum - (m.levels()[u].omega - m.levels()[g].omega)) / TWO_PI).abs() < 1.0);
     // 5 coupling entries; m2-u only by the second field: 4 x 2 + 1 drives.
-    assert_eq!(m.drives.len(), 9);
+    assert_eq!(m.drives().len(), 9);
     let cut: Vec<(String, String, String)> = m
-        .drives
+        .drives()
         .iter()
         .filter(|d| !m.drive_included(d))
         .map(|d| {
-            let c = &m.couplings[d.coupling];
+            let c = &m.couplings()[d.coupling];
             (
-                m.fields[d.field].id.clone(),
-                m.levels[c.lower].id.clone(),
-                m.levels[c.upper].id.clone(),
+                m.fields()[d.field].id.clone(),
+                m.levels()[c.lower].id.clone(),
+                m.levels()[c.upper].id.clone(),
             )
         })
         .collect();
@@ -152,43 +155,43 @@ fn ladder_is_on_two_photon_resonance_with_far_drives_cut() {
     );
     // Intermediate lifetime 5 ns; first-step Rabi frequency from 200 mW/cm^2
     // on 3.0 ea0: Omega/2pi = 47.1 MHz (Omega = d E0 / hbar).
-    assert_relative_eq!(m.levels[idx(&m, "m")].gamma, 2e8, max_relative = 1e-12);
-    assert_relative_eq!(mhz(m.drives[0].rabi), 47.1, max_relative = 2e-3);
+    assert_relative_eq!(m.levels()[idx(&m, "m")].gamma, 2e8, max_relative = 1e-12);
+    assert_relative_eq!(mhz(m.drives()[0].rabi), 47.1, max_relative = 2e-3);
     // 3 mW in a 100 um waist: 19.1 W/cm^2.
     assert_relative_eq!(
-        m.fields[1].peak_intensity.unwrap() / 1e4,
+        m.fields()[1].peak_intensity.unwrap() / 1e4,
         19.099,
         max_relative = 1e-4
     );
     // Default window covers both envelopes.
-    assert!(m.window.start < 0.0 && m.window.end > 100e-9);
+    assert!(m.window().start < 0.0 && m.window().end > 100e-9);
 }
 
 #[test]
 fn lambda_legs_and_raman_area() {
     let m = load("lambda_raman.yaml");
     let (g1, g2, e) = (idx(&m, "g1"), idx(&m, "g2"), idx(&m, "e"));
-    assert_eq!(m.drives.len(), 2, "each field drives only its own leg");
-    for d in &m.drives {
+    assert_eq!(m.drives().len(), 2, "each field drives only its own leg");
+    for d in m.drives() {
         assert_relative_eq!(mhz(m.detuning(d)), -2000.0, max_relative = 1e-9);
         assert_relative_eq!(mhz(d.rabi.abs()), 40.0, max_relative = 1e-12);
         assert!(matches!(
-            m.couplings[d.coupling].dipole,
+            m.couplings()[d.coupling].dipole,
             Dipole::Relative(_)
         ));
-        assert_eq!(m.couplings[d.coupling].upper, e);
+        assert_eq!(m.couplings()[d.coupling].upper, e);
     }
     // Two-photon resonance: omega_pump - omega_stokes = omega_g2 - omega_g1.
-    let diff = m.fields[0].omega - m.fields[1].omega;
-    let resid = ((diff - (m.levels[g2].omega - m.levels[g1].omega)) / TWO_PI).abs();
+    let diff = m.fields()[0].omega - m.fields()[1].omega;
+    let resid = ((diff - (m.levels()[g2].omega - m.levels()[g1].omega)) / TWO_PI).abs();
     assert!(resid < 1.0, "{resid} Hz");
     // Raman area: Omega_p Omega_s / (2 Delta) x 3/8 T = pi (to 0.1 %).
-    let (op, os) = (m.drives[0].rabi.abs(), m.drives[1].rabi.abs());
-    let delta = m.detuning(&m.drives[0]).abs();
-    let t = m.fields[0].envelope.area() * 2.0;
+    let (op, os) = (m.drives()[0].rabi.abs(), m.drives()[1].rabi.abs());
+    let delta = m.detuning(&m.drives()[0]).abs();
+    let t = m.fields()[0].envelope.area() * 2.0;
     assert_relative_eq!(op * os / (2.0 * delta) * 0.375 * t, PI, max_relative = 1e-3);
     // Relative dipoles: no intensity is known.
-    assert!(m.fields.iter().all(|f| f.peak_intensity.is_none()));
+    assert!(m.fields().iter().all(|f| f.peak_intensity.is_none()));
 }
 
 #[test]
@@ -198,15 +201,15 @@ fn lambda_variant_without_field_lists_drives_both_legs() {
         .replace("    fields: [pump]\n", "")
         .replace("    fields: [stokes]\n", "");
     let m = scheme::parse(&variant, "variant.yaml").unwrap();
-    assert_eq!(m.drives.len(), 4);
+    assert_eq!(m.drives().len(), 4);
     let dets: Vec<f64> = m
-        .drives
+        .drives()
         .iter()
         .map(|d| (mhz(m.detuning(d)) * 10.0).round() / 10.0)
         .collect();
     // pump: g1-e -2 GHz, g2-e +3.1 GHz; stokes: g1-e -7.1 GHz, g2-e -2 GHz.
     assert_eq!(dets, vec![-2000.0, 3100.0, -7100.0, -2000.0]);
-    assert!(m.drives.iter().all(|d| m.drive_included(d)));
+    assert!(m.drives().iter().all(|d| m.drive_included(d)));
 }
 
 #[test]
@@ -218,7 +221,7 @@ fn complete_example_in_the_format_reference_parses() {
     let start = doc.find("```yaml\n").unwrap() + "```yaml\n".len();
     let end = start + doc[start..].find("```").unwrap();
     let m = scheme::parse(&doc[start..end], "scheme-format.md").unwrap_or_else(|e| panic!("{e}"));
-    assert_eq!(m.levels.len(), 2);
-    assert_relative_eq!(mhz(m.detuning(&m.drives[0])), -20.0, max_relative = 1e-6);
+    assert_eq!(m.levels().len(), 2);
+    assert_relative_eq!(mhz(m.detuning(&m.drives()[0])), -20.0, max_relative = 1e-6);
     assert!(doc.contains("IEC 60825-1"));
 }

@@ -7,7 +7,7 @@ use std::f64::consts::PI;
 
 use estimate_support::{rect, rel, tau, Builder};
 use levelplan::estimate::{estimate, intensity_fwhm, remedy, EstimateError, LengthRule};
-use levelplan::model::{Envelope, Model};
+use levelplan::model::{Envelope, Model, Window};
 
 const W0: f64 = 2.0 * PI * 384.0e12;
 
@@ -69,7 +69,7 @@ fn rectangular_leak_remedy_is_computed() {
     let r = remedy(&m, 2, tol).unwrap().expect("a remedy");
     assert_eq!(r.drive, 1);
     assert_eq!(r.length_rule, LengthRule::LineEnvelope);
-    let d = m.detuning(&m.drives[1]);
+    let d = m.detuning(&m.drives()[1]);
     let area = 0.5 * PI; // half the Rabi frequency of the pi pulse
     let t_star = area / (d.abs() * tol.sqrt());
     let got = r.length_for_tolerance.expect("a length");
@@ -129,7 +129,7 @@ fn gaussian_leak_length_is_exact() {
     let sigma = 40e-9;
     let m = leaky(Envelope::Gaussian { center: 0.0, sigma }, tau(8e6));
     let tol = 1e-6;
-    let d = m.detuning(&m.drives[1]);
+    let d = m.detuning(&m.drives()[1]);
     let area = 0.5 * PI;
     let p = estimate(&m).unwrap().levels[2].first_order.unwrap();
     assert!(rel(p, (area / 2.0).powi(2) * (-(d * sigma).powi(2)).exp()) < 1e-10);
@@ -183,10 +183,17 @@ fn second_order_leak_remedy_holds() {
     assert_eq!(r.length_rule, LengthRule::Exact);
     let len = r.length_for_tolerance.unwrap();
     assert!(len > t);
-    let mut stretched = build(len);
+    let stretched = build(len);
     // The remedy is taken over all time: widen the window to the new pulse.
-    stretched.window.start = stretched.window.start.min(t / 2.0 - len / 2.0);
-    stretched.window.end = stretched.window.end.max(t / 2.0 + len / 2.0);
+    let w = stretched.window();
+    let stretched = stretched
+        .to_builder()
+        .window(Window {
+            start: w.start.min(t / 2.0 - len / 2.0),
+            end: w.end.max(t / 2.0 + len / 2.0),
+        })
+        .build()
+        .unwrap();
     let p_long = estimate(&stretched).unwrap().levels[1]
         .second_order
         .unwrap();
@@ -282,7 +289,7 @@ fn inspect_and_vet_report_one_sech_length() {
         tau: tau_p,
     };
     assert!((e.value(shown / 2.0).powi(2) - 0.5).abs() < 1e-12);
-    let r = remedy(&m, 2, m.tolerance).unwrap().unwrap();
+    let r = remedy(&m, 2, m.tolerance()).unwrap().unwrap();
     let stretch = r.stretch.expect("a stretch");
     let len = r.length_for_tolerance.expect("a length");
     assert!(rel(len, e.stretched(stretch).length()) < 1e-12);

@@ -38,7 +38,7 @@ fn rosen_zener_sech_pulse() {
     {
         let rabi = area_over_pi / tau_p; // Omega pi tau = area_over_pi * pi
         let m0 = sech_pulse(rabi, delta_tau / tau_p, tau_p);
-        let delta = m0.detuning(&m0.drives[0]);
+        let delta = m0.detuning(&m0.drives()[0]);
         let s = solve(&m0, &SolveOptions::default()).expect("solve");
         assert_eq!(s.method, MethodUsed::Adaptive);
         let x = PI * rabi * tau_p / 2.0;

@@ -30,7 +30,7 @@ fn exact_matches_detuned_rabi_formula() {
         assert_eq!(s.method, MethodUsed::Exact);
         // The detuning the model carries (omega_L = omega_0 + Delta rounds at
         // the 0.5 rad/s level for optical carriers).
-        let delta = m.detuning(&m.drives[0]);
+        let delta = m.detuning(&m.drives()[0]);
         let p = rabi_formula(rabi, delta, t);
         assert!(
             (s.final_populations[1] - p).abs() < 1e-9,
@@ -48,11 +48,10 @@ fn exact_matches_detuned_rabi_formula() {
 #[test]
 fn adaptive_matches_detuned_rabi_formula() {
     for (rabi, delta, t) in cases() {
-        let mut m = two_level(OMEGA0, rabi, delta, t);
-        m.solver.method = Method::Adaptive;
+        let m = with_method(&two_level(OMEGA0, rabi, delta, t), Method::Adaptive);
         let s = solve(&m, &SolveOptions::default()).expect("solve");
         assert_eq!(s.method, MethodUsed::Adaptive);
-        let delta = m.detuning(&m.drives[0]);
+        let delta = m.detuning(&m.drives()[0]);
         let p = rabi_formula(rabi, delta, t);
         eprintln!(
             "adaptive err {:e} steps {} evals {}",
@@ -75,10 +74,9 @@ fn adaptive_matches_detuned_rabi_formula() {
 fn peak_population_is_the_rabi_amplitude() {
     for method in [Method::Exact, Method::Adaptive] {
         for (rabi, delta, t) in cases().into_iter().skip(1) {
-            let mut m = two_level(OMEGA0, rabi, delta, t);
-            m.solver.method = method;
+            let m = with_method(&two_level(OMEGA0, rabi, delta, t), method);
             let s = solve(&m, &SolveOptions::default()).expect("solve");
-            let delta = m.detuning(&m.drives[0]);
+            let delta = m.detuning(&m.drives()[0]);
             let amp = rabi * rabi / (rabi * rabi + delta * delta);
             eprintln!(
                 "{method:?} peak err {:e} steps {}",

@@ -167,7 +167,7 @@ fields:
     envelope: {shape: rectangular, start: "5 ns", duration: "200 ns"}
 "#;
     let m = parse(text);
-    assert_eq!(m.window.start, 5e-9);
+    assert_eq!(m.window().start, 5e-9);
     let s = run(&m);
     let est = estimate::estimate(&m).unwrap();
     let p = s.final_populations[2];

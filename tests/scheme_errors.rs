@@ -72,8 +72,8 @@ fn check(d: &Diagnostic, line: usize, path: &str, expected: &str, found: &str) {
 #[test]
 fn base_is_valid() {
     let m = scheme::parse(BASE, "scheme.yaml").unwrap();
-    assert_eq!(m.levels.len(), 3);
-    assert_eq!(m.drives.len(), 2);
+    assert_eq!(m.levels().len(), 3);
+    assert_eq!(m.drives().len(), 2);
 }
 
 #[test]
@@ -582,8 +582,8 @@ fn solver_settings() {
         "s",
     )
     .unwrap();
-    assert_eq!(m.solver.rtol, 1e-8);
-    assert_eq!(m.solver.method, levelplan::model::Method::Exact);
+    assert_eq!(m.solver().rtol, 1e-8);
+    assert_eq!(m.solver().method, levelplan::model::Method::Exact);
     let d = one(&s("{rtol: -1e-8}"));
     check(
         &d,
@@ -804,11 +804,11 @@ fn overrides_replace_and_create_values() {
     )
     .unwrap();
     let two_pi = 2.0 * std::f64::consts::PI;
-    let det = m.detuning(&m.drives[0]) / two_pi;
+    let det = m.detuning(&m.drives()[0]) / two_pi;
     assert!((det - 30e6).abs() < 1e-3 * 30e6, "{det}");
-    assert_eq!(m.solver.rtol, 1e-6);
-    assert_eq!(m.fields[0].envelope.area(), 20e-9);
-    assert!(m.drives[1].rabi < 0.0);
+    assert_eq!(m.solver().rtol, 1e-6);
+    assert_eq!(m.fields()[0].envelope.area(), 20e-9);
+    assert!(m.drives()[1].rabi < 0.0);
     let (v, unit) =
         scheme::numeric_value_at(BASE, "s.yaml", "fields.probe.tuned.detuning").unwrap();
     assert_eq!((v, unit.as_str()), (-20.0, "MHz"));

@@ -22,21 +22,21 @@ impl Lcg {
 }
 
 fn all_finite(m: &Model) -> bool {
-    m.levels
+    m.levels()
         .iter()
         .all(|l| l.omega.is_finite() && l.gamma.is_finite())
-        && m.couplings.iter().all(|c| c.dipole.value().is_finite())
-        && m.fields.iter().all(|f| {
+        && m.couplings().iter().all(|c| c.dipole.value().is_finite())
+        && m.fields().iter().all(|f| {
             f.omega.is_finite()
                 && f.chirp.is_finite()
                 && f.phase.is_finite()
                 && f.peak_intensity.is_none_or(f64::is_finite)
                 && f.envelope.area().is_finite()
         })
-        && m.drives.iter().all(|d| d.rabi.is_finite())
-        && m.initial.iter().all(|p| p.is_finite())
-        && m.window.start.is_finite()
-        && m.window.end.is_finite()
+        && m.drives().iter().all(|d| d.rabi.is_finite())
+        && m.initial().iter().all(|p| p.is_finite())
+        && m.window().start.is_finite()
+        && m.window().end.is_finite()
 }
 
 fn demos() -> Vec<String> {
@@ -179,7 +179,7 @@ fn aliases_may_repeat_an_envelope() {
         \x20   envelope: &pulse {shape: sin2, start: 0 ns, duration: 50 ns}\n\
         \x20 B:\n    frequency: 242 THz\n    rabi: {on: [g, e], value: 2 MHz}\n    envelope: *pulse\n";
     let m = scheme::parse(text, "x").unwrap();
-    assert_eq!(m.fields[0].envelope, m.fields[1].envelope);
+    assert_eq!(m.fields()[0].envelope, m.fields()[1].envelope);
 }
 
 #[test]
@@ -231,7 +231,7 @@ fn rabi_of(g_upper: &str) -> f64 {
     );
     scheme::parse(&text, "x")
         .unwrap_or_else(|e| panic!("{e}"))
-        .drives[0]
+        .drives()[0]
         .rabi
 }
 
@@ -248,7 +248,7 @@ fn yaml_1_1_booleans_are_text_so_such_ids_work() {
     // YAML 1.2 and here: a level may be called `n`.
     for id in ["n", "y", "yes", "no", "on", "off", "Y", "N"] {
         let m = scheme::parse(&renamed(id), "x").unwrap_or_else(|e| panic!("{id}: {e}"));
-        assert_eq!(m.levels[1].id, id);
+        assert_eq!(m.levels()[1].id, id);
     }
     // Where a boolean is wanted, only true/false are.
     let text = small("\"1 ea0\"").replace("    intensity:", "    rwa: yes\n    intensity:");
@@ -297,7 +297,7 @@ fn leading_zeros_are_decimal_and_ids_keep_them() {
     // as written: as a number 17, and as an id "017".
     assert_eq!(rabi_of("017"), rabi_of("17"));
     let m = scheme::parse(&renamed("017"), "x").unwrap();
-    assert_eq!(m.levels[1].id, "017");
+    assert_eq!(m.levels()[1].id, "017");
 }
 
 #[test]

@@ -59,9 +59,13 @@ fn wavenumber_is_29_9792458_ghz() {
         "dipole: 1 D",
         "    frequency: 30 GHz\n    intensity: 1 W/m^2",
     ));
-    assert_relative_eq!(a.levels[1].omega, b.levels[1].omega, max_relative = 1e-14);
     assert_relative_eq!(
-        a.levels[1].omega / TWO_PI,
+        a.levels()[1].omega,
+        b.levels()[1].omega,
+        max_relative = 1e-14
+    );
+    assert_relative_eq!(
+        a.levels()[1].omega / TWO_PI,
         29.979_245_8e9,
         max_relative = 1e-14
     );
@@ -97,12 +101,12 @@ fn wavelength_to_frequency_rb87_d2() {
     );
     let m = parse(&text);
     assert_relative_eq!(
-        m.fields[0].omega / TWO_PI,
+        m.fields()[0].omega / TWO_PI,
         384.230_484_468_5e12,
         max_relative = 2e-11
     );
     // Detuning of the field from the line: below 10 kHz.
-    assert!((m.detuning(&m.drives[0]) / TWO_PI).abs() < 1e4);
+    assert!((m.detuning(&m.drives()[0]) / TWO_PI).abs() < 1e4);
 }
 
 // Rb-87 D2 cycling transition |F=2, mF=2> -> |F'=3, mF'=3> with sigma+
@@ -118,11 +122,11 @@ fn rabi_frequency_from_intensity_rb87_d2() {
         "    tuned: {to: [g, e], detuning: 0 MHz}\n    intensity: \"1.669 mW/cm^2\"",
     );
     let m = parse(&text);
-    let rabi_mhz = m.drives[0].rabi / TWO_PI / 1e6;
+    let rabi_mhz = m.drives()[0].rabi / TWO_PI / 1e6;
     assert_relative_eq!(rabi_mhz, 4.290, max_relative = 2e-3);
     assert_relative_eq!(rabi_mhz, 6.0666 / 2f64.sqrt(), max_relative = 2e-3);
     assert_relative_eq!(
-        m.fields[0].peak_intensity.unwrap(),
+        m.fields()[0].peak_intensity.unwrap(),
         16.69,
         max_relative = 1e-12
     );
@@ -143,7 +147,7 @@ fn intensity_from_rabi_frequency_rb87_d2() {
         "    tuned: {to: [g, e], detuning: 0 MHz}\n    rabi: {on: [g, e], value: \"4.290 MHz\"}",
     );
     let m = parse(&text);
-    let i_mw_cm2 = m.fields[0].peak_intensity.unwrap() / 10.0;
+    let i_mw_cm2 = m.fields()[0].peak_intensity.unwrap() / 10.0;
     assert_relative_eq!(i_mw_cm2, 1.669, max_relative = 4e-3);
 }
 
@@ -158,11 +162,15 @@ fn gaussian_beam_peak_intensity() {
         "    tuned: {to: [g, e], detuning: 0 MHz}\n    power: \"10 mW\"\n    waist: \"1 mm\"",
     );
     let m = parse(&text);
-    let i_mw_cm2 = m.fields[0].peak_intensity.unwrap() / 10.0;
+    let i_mw_cm2 = m.fields()[0].peak_intensity.unwrap() / 10.0;
     assert_relative_eq!(i_mw_cm2, 636.6, max_relative = 1e-4);
     let d = units::parse_quantity("2.989 ea0", Kind::Dipole).unwrap();
-    let e0 = units::field_amplitude_from_intensity(m.fields[0].peak_intensity.unwrap());
-    assert_relative_eq!(m.drives[0].rabi, d * e0 / units::HBAR, max_relative = 1e-12);
+    let e0 = units::field_amplitude_from_intensity(m.fields()[0].peak_intensity.unwrap());
+    assert_relative_eq!(
+        m.drives()[0].rabi,
+        d * e0 / units::HBAR,
+        max_relative = 1e-12
+    );
 }
 
 // Einstein A to dipole on the Rb-87 D2 line: A = Gamma = 3.8117e7 s^-1 at
@@ -179,7 +187,7 @@ fn einstein_a_to_dipole_rb87_d2() {
             &format!("einstein_a: \"3.8117e7 s^-1\"\n    g_lower: {gl}\n    g_upper: {gu}"),
             "    tuned: {to: [g, e], detuning: 0 MHz}\n    intensity: \"1 mW/cm^2\"",
         );
-        parse(&text).couplings[0].dipole.value() / units::EA0
+        parse(&text).couplings()[0].dipole.value() / units::EA0
     };
     assert_relative_eq!(ea(1, 1), 2.989, max_relative = 2e-4);
     assert_relative_eq!(ea(2, 4), 4.227, max_relative = 2e-4);
@@ -204,11 +212,11 @@ fn lifetime_and_linewidth_agree_rb87() {
     let by_width = parse(
         "levels:\n  g: {energy: 0 eV}\n  e: {energy: 1.589 eV, linewidth: 6.0666 MHz}\ninitial: g\nwindow: {start: 0 s, end: 1 us}\n",
     );
-    assert_relative_eq!(by_tau.levels[1].gamma, 3.8117e7, max_relative = 1e-4);
-    assert_relative_eq!(by_width.levels[1].gamma, 3.8117e7, max_relative = 1e-4);
+    assert_relative_eq!(by_tau.levels()[1].gamma, 3.8117e7, max_relative = 1e-4);
+    assert_relative_eq!(by_width.levels()[1].gamma, 3.8117e7, max_relative = 1e-4);
     assert_relative_eq!(
-        by_tau.levels[1].gamma,
-        by_width.levels[1].gamma,
+        by_tau.levels()[1].gamma,
+        by_width.levels()[1].gamma,
         max_relative = 2e-4
     );
 }
@@ -222,9 +230,9 @@ fn rectangular_pulse_area_from_rabi() {
         "dipole: 1",
         "    tuned: {to: [g, e], detuning: 0 MHz}\n    rabi: {on: [g, e], value: 5 MHz}",
     ));
-    assert_relative_eq!(m.pulse_area(&m.drives[0]), PI, max_relative = 1e-12);
+    assert_relative_eq!(m.pulse_area(&m.drives()[0]), PI, max_relative = 1e-12);
     // Bare relative dipole: no intensity can be known.
-    assert_eq!(m.fields[0].peak_intensity, None);
+    assert_eq!(m.fields()[0].peak_intensity, None);
 }
 
 // Area on a Gaussian: Omega * sigma sqrt(2 pi) = area, and the FWHM is of
@@ -236,12 +244,12 @@ fn gaussian_area_and_fwhm() {
         fields:\n  L:\n    tuned: {to: [g, e], detuning: 0 Hz}\n    area: {on: [e, g], value: 0.5 pi}\n\
         \x20   envelope: {shape: gaussian, center: 40 ns, fwhm: 10 ns}\n";
     let m = parse(text);
-    assert_relative_eq!(m.pulse_area(&m.drives[0]), 0.5 * PI, max_relative = 1e-12);
-    let env = &m.fields[0].envelope;
+    assert_relative_eq!(m.pulse_area(&m.drives()[0]), 0.5 * PI, max_relative = 1e-12);
+    let env = &m.fields()[0].envelope;
     assert_relative_eq!(env.value(40e-9 + 5e-9).powi(2), 0.5, max_relative = 1e-12);
     // Default window spans the envelope down to f = 1e-8.
-    assert!(env.value(m.window.start) <= 1.0001e-8 && env.value(m.window.end) <= 1.0001e-8);
-    assert!(m.window.start < 40e-9 - 30e-9 && m.window.end > 40e-9 + 30e-9);
+    assert!(env.value(m.window().start) <= 1.0001e-8 && env.value(m.window().end) <= 1.0001e-8);
+    assert!(m.window().start < 40e-9 - 30e-9 && m.window().end > 40e-9 + 30e-9);
 }
 
 // Detuning sign convention: Delta = omega_L - omega_ab, negative = red
@@ -254,13 +262,13 @@ fn detuning_sign_and_cyclic_units() {
         "    tuned: {to: [e, g], detuning: \"-20 MHz\"}\n    intensity: \"1 W/cm^2\"\n    chirp: \"10 MHz/us\"",
     ));
     assert_relative_eq!(
-        m.detuning(&m.drives[0]),
+        m.detuning(&m.drives()[0]),
         -TWO_PI * 20e6,
         max_relative = 1e-6
     );
-    assert!(m.fields[0].omega < m.transition_omega(0));
+    assert!(m.fields()[0].omega < m.transition_omega(0));
     // Chirp 10 MHz/us = 1e13 Hz/s, stored as 2 pi beta.
-    assert_relative_eq!(m.fields[0].chirp, TWO_PI * 1e13, max_relative = 1e-14);
+    assert_relative_eq!(m.fields()[0].chirp, TWO_PI * 1e13, max_relative = 1e-14);
 }
 
 // Rabi frequencies of one field scale with the dipoles of the couplings it
@@ -272,12 +280,12 @@ fn rabi_scales_with_dipole_ratio() {
         fields:\n  L:\n    tuned: {to: [g, a], detuning: 0 Hz}\n    rabi: {on: [g, a], value: 8 MHz}\n\
         \x20   envelope: {shape: sin2, start: 0 ns, duration: 1 us}\n";
     let m = parse(text);
-    assert_relative_eq!(m.drives[0].rabi, TWO_PI * 8e6, max_relative = 1e-12);
-    assert_relative_eq!(m.drives[1].rabi, -TWO_PI * 2e6, max_relative = 1e-12);
+    assert_relative_eq!(m.drives()[0].rabi, TWO_PI * 8e6, max_relative = 1e-12);
+    assert_relative_eq!(m.drives()[1].rabi, -TWO_PI * 2e6, max_relative = 1e-12);
     // The field's intensity follows from the reference coupling.
     let e0 = units::HBAR * TWO_PI * 8e6 / (2.0 * units::EA0);
     assert_relative_eq!(
-        m.fields[0].peak_intensity.unwrap(),
+        m.fields()[0].peak_intensity.unwrap(),
         units::intensity_from_field_amplitude(e0),
         max_relative = 1e-12
     );

@@ -37,8 +37,8 @@ const NOT_PHYSICS: &[(&str, &str)] = &[
         "error path",
     ),
     (
-        "tests/propagation_budget.rs::empty_window_returns_the_initial_state",
-        "edge case of the window",
+        "tests/propagation_budget.rs::empty_window_is_refused_by_the_builder",
+        "error path",
     ),
     (
         "tests/propagation_dop853.rs::naive_dop853_with_time_dependent_rhs_is_wrong",
@@ -77,7 +77,7 @@ const NOT_PHYSICS: &[(&str, &str)] = &[
         "error path",
     ),
     (
-        "tests/estimate.rs::the_builder_refuses_what_the_estimator_would",
+        "src/model/builder.rs::solver_settings_and_envelope_scales_are_checked",
         "error path",
     ),
     ("src/units/mod.rs::splits_sign_exponent_and_unit", "parsing"),

@@ -13,7 +13,7 @@ use libfuzzer_sys::fuzz_target;
 fuzz_target!(|data: &[u8]| {
     let Ok(text) = std::str::from_utf8(data) else { return };
     let Ok(model) = levelplan::scheme::parse(text, "fuzz.yaml") else { return };
-    if model.levels.len() > 8 || model.drives.len() > 16 {
+    if model.levels().len() > 8 || model.drives().len() > 16 {
         return;
     }
     let opts = SolveOptions { samples: 5, step_budget: 20_000, ..SolveOptions::default() };

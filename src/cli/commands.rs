@@ -44,16 +44,16 @@ pub fn vet(a: VetArgs) -> Result<i32, Error> {
 pub fn evolve(a: EvolveArgs) -> Result<i32, Error> {
     pipeline::evolve::check_samples(a.samples, 0, false)?;
     let (model, prov) = load(&a.scheme.scheme)?;
-    pipeline::evolve::check_samples(a.samples, model.levels.len(), a.plot.is_some())?;
+    pipeline::evolve::check_samples(a.samples, model.levels().len(), a.plot.is_some())?;
     let evo = pipeline::evolve(&model, a.samples)?;
-    let ids: Vec<String> = model.levels.iter().map(|l| l.id.clone()).collect();
+    let ids: Vec<String> = model.levels().iter().map(|l| l.id.clone()).collect();
     let csv = evolve_fmt::csv(&prov, &ids, &evo);
     if let Some(path) = &a.plot {
         let spec = evolve_fmt::EvolvePlot {
-            title: model.title.as_deref(),
+            title: model.title(),
             level_ids: &ids,
-            window: (model.window.start, model.window.end),
-            tolerance: model.tolerance,
+            window: (model.window().start, model.window().end),
+            tolerance: model.tolerance(),
             log: a.log,
         };
         write_plot(path, evolve_fmt::svg(&spec, &evo))?;

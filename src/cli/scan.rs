@@ -167,14 +167,14 @@ pub fn scan(a: ScanArgs) -> Result<i32, Error> {
     let grid = Grid::new(axes, a.force)?;
     let model = s.preflight(&grid)?;
     let prov = s.provenance();
-    let level_ids: Vec<String> = model.levels.iter().map(|l| l.id.clone()).collect();
+    let level_ids: Vec<String> = model.levels().iter().map(|l| l.id.clone()).collect();
     let n_levels = level_ids.len();
     let hash = grid::scan_hash(s.text().as_bytes(), &grid.axes, tolerance);
     let head = fmt::head(&fmt::ScanHead {
         provenance: &prov,
         axes: &grid.axes,
         tolerance,
-        default_tolerance: model.tolerance,
+        default_tolerance: model.tolerance(),
         points: grid.len(),
         hash: &hash,
         shard,
@@ -202,10 +202,10 @@ pub fn scan(a: ScanArgs) -> Result<i32, Error> {
     )?;
     if let Some(path) = &a.plot {
         let title = model
-            .title
-            .clone()
+            .title()
+            .map(str::to_owned)
             .unwrap_or_else(|| format!("Scan of {}", s.file()));
-        let tolerance = tolerance.unwrap_or(model.tolerance);
+        let tolerance = tolerance.unwrap_or(model.tolerance());
         let svg = scan_plot(
             title,
             &plan.grid,

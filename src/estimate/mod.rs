@@ -57,7 +57,7 @@ mod view;
 
 use num_complex::Complex64 as C;
 
-use crate::model::{Envelope, Model, Window};
+use crate::model::{Model, Window};
 pub use remedy::{intensity_fwhm, remedy, LengthRule};
 pub use spectrum::{envelope_spectrum, envelope_spectrum_bound, envelope_spectrum_quadrature};
 use view::FieldView;
@@ -189,8 +189,6 @@ pub struct Estimate {
 pub enum EstimateError {
     #[error("non-finite value in the perturbative estimate ({0})")]
     NonFinite(String),
-    #[error("the model cannot be estimated: {0}")]
-    InvalidModel(String),
     #[error("invalid argument to the estimator: {0}")]
     InvalidArgument(String),
 }
@@ -454,71 +452,10 @@ pub(crate) fn level_estimate(ctx: &Ctx<'_>, k: usize) -> Result<(LevelEstimate, 
     }
 }
 
-/// Checks the few things the estimator relies on, so that a hand-built model
-/// gives an error instead of a panic or a NaN.
-pub(crate) fn check_model(m: &Model) -> Result<(), EstimateError> {
-    let bad = |s: String| Err(EstimateError::InvalidModel(s));
-    let nl = m.levels.len();
-    if m.initial.len() != nl {
-        return bad(format!(
-            "{} initial populations for {} levels",
-            m.initial.len(),
-            nl
-        ));
-    }
-    for (l, p) in m.levels.iter().zip(&m.initial) {
-        if !l.omega.is_finite() {
-            return bad(format!("level '{}' has a non-finite energy", l.id));
-        }
-        if !(p.is_finite() && *p >= 0.0) {
-            return bad(format!("level '{}' has initial population {p}", l.id));
-        }
-    }
-    for c in &m.couplings {
-        if c.lower >= nl || c.upper >= nl || c.lower == c.upper {
-            return bad("a coupling names a level that does not exist".into());
-        }
-    }
-    for f in &m.fields {
-        if !(f.omega.is_finite() && f.chirp.is_finite() && f.phase.is_finite()) {
-            return bad(format!(
-                "field '{}' has a non-finite frequency, chirp or phase",
-                f.id
-            ));
-        }
-        check_envelope(&f.envelope)
-            .map_err(|s| EstimateError::InvalidModel(format!("field '{}': {s}", f.id)))?;
-    }
-    for d in &m.drives {
-        if d.field >= m.fields.len() || d.coupling >= m.couplings.len() {
-            return bad("a drive names a field or coupling that does not exist".into());
-        }
-        if !d.rabi.is_finite() {
-            return bad(format!(
-                "field '{}' has a non-finite Rabi frequency",
-                m.fields[d.field].id
-            ));
-        }
-    }
-    let w = m.window;
-    if !(w.start.is_finite() && w.end.is_finite() && w.end >= w.start) {
-        return bad(format!(
-            "window [{}, {}] is not a finite interval",
-            w.start, w.end
-        ));
-    }
-    Ok(())
-}
-
-pub(crate) fn check_envelope(e: &Envelope) -> Result<(), String> {
-    e.check()
-}
-
 /// First- and second-order estimate of every level, and the drives the
 /// detuning cutoff leaves out with their first-order population and light
 /// shift. Fails (never returns NaN) when a number is not finite.
 pub fn estimate(model: &Model) -> Result<Estimate, EstimateError> {
-    check_model(model)?;
     let ctx = Ctx::new(model, Some(model.window));
     let levels = (0..model.levels.len())
         .map(|k| level_estimate(&ctx, k).map(|(le, _)| le))

@@ -10,7 +10,7 @@ use std::borrow::Cow;
 
 use super::spectrum::envelope_spectrum_bound;
 use super::view::FieldView;
-use super::{check_model, contribution, level_estimate, terms, Ctx, EstimateError, Order, Remedy};
+use super::{contribution, level_estimate, terms, Ctx, EstimateError, Order, Remedy};
 use crate::model::envelope::blackman_fwhm_fraction;
 use crate::model::{gaussian_sigma_from_intensity_fwhm, Envelope, Model};
 
@@ -110,7 +110,6 @@ pub fn remedy(
     level: usize,
     tolerance: f64,
 ) -> Result<Option<Remedy>, EstimateError> {
-    check_model(model)?;
     if level >= model.levels.len() {
         return Err(EstimateError::InvalidArgument(format!(
             "no level with index {level}"

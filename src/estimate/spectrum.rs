@@ -352,7 +352,7 @@ pub fn envelope_spectrum_quadrature(
     kappa: f64,
     interval: (f64, f64),
 ) -> Result<C, EstimateError> {
-    super::check_envelope(env).map_err(EstimateError::InvalidArgument)?;
+    env.check().map_err(EstimateError::InvalidArgument)?;
     if !(nu.is_finite() && kappa.is_finite() && interval.0.is_finite() && interval.1.is_finite()) {
         return Err(EstimateError::InvalidArgument(format!(
             "spectrum quadrature needs finite numbers (nu {nu}, kappa {kappa}, interval {interval:?})"

@@ -3,8 +3,10 @@
 //! Owns: [`ModelBuilder`], [`ModelError`] and the invariants every model
 //! keeps (finite numbers, indices in range, couplings ordered by energy,
 //! populations summing to 1, targets not initially populated, one drive per
-//! field and level pair, a window that ends after it starts, positive
-//! solver tolerances). Scheme validation ends here too: it reports the
+//! field and level pair, envelopes with a duration, a window that ends
+//! after it starts, positive finite solver tolerances). These are the only
+//! consistency checks of a model: the Hamiltonian assembly, the propagators
+//! and the estimator rely on them and check only the numbers they compute. Scheme validation ends here too: it reports the
 //! problems of a file with their place in it first, then hands the parts to
 //! this builder, so a model passes these checks whichever way it was made.
 //!
@@ -84,6 +86,23 @@ impl Model {
     /// An empty [`ModelBuilder`].
     pub fn builder() -> ModelBuilder {
         ModelBuilder::new()
+    }
+
+    /// A builder holding this model's parts, window and settings: the one
+    /// way to a changed model, since `build` checks the changed parts again.
+    pub fn to_builder(&self) -> ModelBuilder {
+        ModelBuilder {
+            title: self.title.clone(),
+            levels: self.levels.clone(),
+            couplings: self.couplings.clone(),
+            fields: self.fields.clone(),
+            drives: self.drives.clone(),
+            initial: Some(self.initial.clone()),
+            targets: self.targets.clone(),
+            tolerance: Some(self.tolerance),
+            window: Some(self.window),
+            solver: self.solver,
+        }
     }
 }
 
@@ -241,6 +260,10 @@ fn non_finite(m: &Model) -> Vec<ModelError> {
     {
         bad(Part::Window);
     }
+    let s = &m.solver;
+    if !(s.rtol.is_finite() && s.atol.is_finite() && s.detuning_cutoff.is_finite()) {
+        bad(Part::Solver);
+    }
     out
 }
 
@@ -292,6 +315,8 @@ fn invariants(m: &Model, out: &mut Vec<ModelError>) {
         }
         if let Err(reason) = f.envelope.check() {
             invalid(out, Part::Envelope(i), reason);
+        } else if !envelope_has_scale(&f.envelope) {
+            invalid(out, Part::Envelope(i), "no finite, nonzero time scale");
         } else if let super::Envelope::Samples { values, .. } = &f.envelope {
             if values.iter().any(|v| *v < 0.0) {
                 invalid(out, Part::Envelope(i), "a negative sample value");
@@ -310,6 +335,13 @@ fn invariants(m: &Model, out: &mut Vec<ModelError>) {
     if !(s.rtol > 0.0 && s.atol > 0.0 && s.detuning_cutoff > 0.0) {
         invalid(out, Part::Solver, "tolerances and cutoff must be positive");
     }
+}
+
+/// Whether a checked envelope has a finite, positive shortest feature and a
+/// finite peak value (a duration so small it underflows has neither).
+fn envelope_has_scale(e: &super::Envelope) -> bool {
+    let s = e.shortest_feature();
+    s.is_finite() && s > 0.0 && e.value(e.center()).is_finite()
 }
 
 fn couplings(m: &Model, out: &mut Vec<ModelError>) {
@@ -428,6 +460,42 @@ mod tests {
             }
         );
         assert_eq!(m.tolerance, DEFAULT_TOLERANCE);
+    }
+
+    // The checks the propagators and the estimator no longer repeat: finite
+    // solver settings, and an envelope whose shortest feature does not
+    // underflow to 0 (a Blackman pulse of the smallest subnormal duration).
+    #[test]
+    fn solver_settings_and_envelope_scales_are_checked() {
+        let solver = SolverSettings {
+            rtol: f64::INFINITY,
+            ..SolverSettings::default()
+        };
+        let e = two_level().solver(solver).build().unwrap_err();
+        assert_eq!(e, ModelError::NonFinite { at: Part::Solver });
+        let m = two_level().build().unwrap();
+        let mut fields = m.fields().to_vec();
+        fields[0].envelope = Envelope::Blackman {
+            start: 0.0,
+            duration: 5e-324,
+        };
+        let e = m
+            .to_builder()
+            .fields(fields)
+            .window(m.window())
+            .build()
+            .unwrap_err();
+        assert!(
+            matches!(
+                e,
+                ModelError::Invalid {
+                    at: Part::Envelope(0),
+                    ..
+                }
+            ),
+            "{e}"
+        );
+        assert_eq!(m.to_builder().build(), Ok(m));
     }
 
     #[test]

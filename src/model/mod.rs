@@ -8,10 +8,11 @@
 //! angular frequencies E/hbar, times in seconds.
 //!
 //! Must not: know about YAML, strings with units, files, or output formats.
-//! A [`Model`] is built by `scheme` validation or by [`ModelBuilder`], which
-//! both end in the builder's checks; it is immutable afterwards except
-//! through the explicit setters the scan module uses, which re-run no
-//! validation and therefore only change plain numbers.
+//! A [`Model`] is built only by [`ModelBuilder`] (scheme validation ends in
+//! it); its fields are private to the crate, read through accessors, and
+//! the builder's checks are the only consistency checks: later stages rely
+//! on them instead of checking again. The crate's derived models
+//! ([`Model::with_field_envelope`]) keep the same invariants.
 
 mod builder;
 pub mod envelope;
@@ -28,31 +29,36 @@ pub use field::{
 use std::f64::consts::PI;
 
 /// A validated scheme: SI numbers only.
+///
+/// A `Model` exists only through [`ModelBuilder`] (which scheme validation
+/// ends in), so every model has passed the builder's checks; its fields are
+/// private to the crate and read through the accessors below. The crate's
+/// own derived models ([`Model::with_field_envelope`]) keep those invariants.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Model {
     /// Free text title from the scheme, if any.
-    pub title: Option<String>,
+    pub(crate) title: Option<String>,
     /// Levels in file order.
-    pub levels: Vec<Level>,
+    pub(crate) levels: Vec<Level>,
     /// Dipole couplings in file order.
-    pub couplings: Vec<Coupling>,
+    pub(crate) couplings: Vec<Coupling>,
     /// Fields in file order.
-    pub fields: Vec<Field>,
+    pub(crate) fields: Vec<Field>,
     /// Every (field, coupling) pair the field drives, in field order then
     /// coupling order. Includes drives that a later stage may leave out by
     /// the detuning cutoff.
-    pub drives: Vec<Drive>,
+    pub(crate) drives: Vec<Drive>,
     /// Initial population of each level (same length as `levels`, sums to 1).
     /// Initial amplitudes are `sqrt(p)` with phase 0.
-    pub initial: Vec<f64>,
+    pub(crate) initial: Vec<f64>,
     /// Indices of target levels.
-    pub targets: Vec<usize>,
+    pub(crate) targets: Vec<usize>,
     /// Default spectator tolerance (population).
-    pub tolerance: f64,
+    pub(crate) tolerance: f64,
     /// Time window of the dynamics.
-    pub window: Window,
+    pub(crate) window: Window,
     /// Solver settings.
-    pub solver: SolverSettings,
+    pub(crate) solver: SolverSettings,
 }
 
 /// One level.
@@ -160,6 +166,48 @@ impl Default for SolverSettings {
 }
 
 impl Model {
+    /// Free text title from the scheme, if any.
+    pub fn title(&self) -> Option<&str> {
+        self.title.as_deref()
+    }
+    /// Levels in file order.
+    pub fn levels(&self) -> &[Level] {
+        &self.levels
+    }
+    /// Dipole couplings in file order.
+    pub fn couplings(&self) -> &[Coupling] {
+        &self.couplings
+    }
+    /// Fields in file order.
+    pub fn fields(&self) -> &[Field] {
+        &self.fields
+    }
+    /// Every (field, coupling) pair a field drives, in field order then
+    /// coupling order, including drives beyond the detuning cutoff.
+    pub fn drives(&self) -> &[Drive] {
+        &self.drives
+    }
+    /// Initial population of each level (one per level, summing to 1).
+    pub fn initial(&self) -> &[f64] {
+        &self.initial
+    }
+    /// Indices of target levels.
+    pub fn targets(&self) -> &[usize] {
+        &self.targets
+    }
+    /// Default spectator tolerance (population).
+    pub fn tolerance(&self) -> f64 {
+        self.tolerance
+    }
+    /// Time window of the dynamics.
+    pub fn window(&self) -> Window {
+        self.window
+    }
+    /// Solver settings.
+    pub fn solver(&self) -> SolverSettings {
+        self.solver
+    }
+
     /// Transition angular frequency of a coupling, omega_upper - omega_lower (>= 0).
     pub fn transition_omega(&self, coupling: usize) -> f64 {
         let c = &self.couplings[coupling];
@@ -192,7 +240,15 @@ impl Model {
     /// multiplied by `chirp_scale`; every drive of that field keeps its pulse
     /// area (its Rabi frequency is rescaled), and the window is widened to
     /// hold the new envelope. Used to check remedies by exact propagation.
-    pub fn with_field_envelope(&self, field: usize, env: Envelope, chirp_scale: f64) -> Model {
+    /// The copy is built again through [`ModelBuilder`], so it keeps every
+    /// invariant or is refused (a new envelope that is not valid, a rescaled
+    /// Rabi frequency that overflows).
+    pub fn with_field_envelope(
+        &self,
+        field: usize,
+        env: Envelope,
+        chirp_scale: f64,
+    ) -> Result<Model, ModelError> {
         let mut m = self.clone();
         let old = m.fields[field].envelope.area();
         let new = env.area();
@@ -208,7 +264,7 @@ impl Model {
         for d in m.drives.iter_mut().filter(|d| d.field == field) {
             d.rabi *= factor;
         }
-        m
+        m.to_builder().build()
     }
 
     /// Index of a level by id.

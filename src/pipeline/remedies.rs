@@ -32,7 +32,7 @@ pub(super) fn check(model: &Model, rep: &mut VetReport) -> Result<(), Error> {
         let center = env.center();
         let sigma = crate::model::gaussian_sigma_from_intensity_fwhm(rm.fwhm);
         rm.exact_gaussian = Some(final_population(
-            &model.with_field_envelope(f, Envelope::Gaussian { center, sigma }, 1.0),
+            &model.with_field_envelope(f, Envelope::Gaussian { center, sigma }, 1.0)?,
             k,
         )?);
         if let Some(frac) = estimate::intensity_fwhm(&Envelope::Blackman {
@@ -45,7 +45,7 @@ pub(super) fn check(model: &Model, rep: &mut VetReport) -> Result<(), Error> {
                 duration,
             };
             rm.exact_blackman = Some(final_population(
-                &model.with_field_envelope(f, blackman, 1.0),
+                &model.with_field_envelope(f, blackman, 1.0)?,
                 k,
             )?);
         }
@@ -53,7 +53,7 @@ pub(super) fn check(model: &Model, rep: &mut VetReport) -> Result<(), Error> {
             let s = len / rm.present_length;
             if s.is_finite() && s > 0.0 {
                 rm.exact_at_length = Some(final_population(
-                    &model.with_field_envelope(f, env.stretched(s), 1.0 / s),
+                    &model.with_field_envelope(f, env.stretched(s), 1.0 / s)?,
                     k,
                 )?);
             }

@@ -115,8 +115,6 @@ pub enum SolveError {
     NonFinite { stage: String },
     #[error("integrator failed: {0}")]
     Integrator(String),
-    #[error("the model cannot be propagated: {reason}")]
-    InvalidModel { reason: String },
 }
 
 /// Propagate the model over its window with the method its settings ask for.
@@ -130,16 +128,7 @@ pub fn solve(model: &Model, opts: &SolveOptions) -> Result<Solution, SolveError>
         AssemblyError::NonFinite(what) => SolveError::NonFinite {
             stage: format!("Hamiltonian assembly ({what})"),
         },
-        AssemblyError::Inconsistent(reason) => SolveError::InvalidModel { reason },
     })?;
-    let (rtol, atol) = (model.solver.rtol, model.solver.atol);
-    if !(rtol.is_finite() && rtol > 0.0 && atol.is_finite() && atol > 0.0) {
-        return Err(SolveError::InvalidModel {
-            reason: format!(
-                "tolerances must be positive and finite (rtol {rtol:e}, atol {atol:e})"
-            ),
-        });
-    }
     let obstacle = fh.piecewise_constant_obstacle(model);
     let method = match (model.solver.method, &obstacle) {
         (Method::Exact, Some(reason)) => {
@@ -151,12 +140,9 @@ pub fn solve(model: &Model, opts: &SolveOptions) -> Result<Solution, SolveError>
         (Method::Adaptive, _) | (Method::Auto, Some(_)) => MethodUsed::Adaptive,
     };
     let plan = plan::Plan::new(model, &fh, opts.samples);
-    let solution = if fh.duration == 0.0 {
-        trivial(model, &fh, &plan, method)
-    } else {
-        let mut eq = Amplitudes::new(model, &fh);
-        run(&mut eq, model, &fh, &plan, method, opts)?
-    };
+    // The window ends after it starts (the model's builder checked it).
+    let mut eq = Amplitudes::new(model, &fh);
+    let solution = run(&mut eq, model, &fh, &plan, method, opts)?;
     let finite = solution
         .final_populations
         .iter()
@@ -220,31 +206,6 @@ fn run<E: Equation>(
         excluded_drives: fh.excluded.clone(),
         samples: obs.samples.taken,
     })
-}
-
-/// An empty window: the initial populations.
-fn trivial(
-    model: &Model,
-    fh: &FrameHamiltonian,
-    plan: &plan::Plan,
-    method: MethodUsed,
-) -> Solution {
-    let p = model.initial.clone();
-    Solution {
-        method,
-        final_populations: p.clone(),
-        peak_populations: p.clone(),
-        lost: 0.0,
-        norm_error: 0.0,
-        steps: 0,
-        evaluations: 0,
-        rtol: model.solver.rtol,
-        atol: model.solver.atol,
-        excluded_drives: fh.excluded.clone(),
-        samples: (0..plan.samples)
-            .map(|_| (model.window.end, p.clone()))
-            .collect(),
-    }
 }
 
 #[cfg(test)]

@@ -3,7 +3,7 @@
 
 use super::equation::{Equation, Generator};
 use super::*;
-use crate::model::{Level, Model, SolverSettings, Window, DEFAULT_TOLERANCE};
+use crate::model::{Level, Model, Window};
 use num_complex::Complex64;
 
 /// Population flowing from level a to level b at rate k (1/s):
@@ -65,18 +65,12 @@ fn window_model(t: f64) -> Model {
         gamma: 0.0,
         tolerance: None,
     };
-    Model {
-        title: None,
-        levels: vec![level("a"), level("b")],
-        couplings: Vec::new(),
-        fields: Vec::new(),
-        drives: Vec::new(),
-        initial: vec![1.0, 0.0],
-        targets: Vec::new(),
-        tolerance: DEFAULT_TOLERANCE,
-        window: Window { start: 0.0, end: t },
-        solver: SolverSettings::default(),
-    }
+    Model::builder()
+        .levels(vec![level("a"), level("b")])
+        .initial(vec![1.0, 0.0])
+        .window(Window { start: 0.0, end: t })
+        .build()
+        .expect("a valid model")
 }
 
 // p_a(t) = e^{-k t}, p_b = 1 - p_a (elementary calculus), on both steppers,

@@ -196,6 +196,26 @@ pub fn two_level(omega0: f64, rabi: f64, delta: f64, t: f64) -> Model {
         .build()
 }
 
+/// The same model with another propagation method, through the library's
+/// builder (a model cannot be changed in place).
+pub fn with_method(m: &Model, method: Method) -> Model {
+    m.to_builder()
+        .solver(SolverSettings {
+            method,
+            ..m.solver()
+        })
+        .build()
+        .unwrap_or_else(|e| panic!("test model refused: {e}"))
+}
+
+/// The same model over another window, through the library's builder.
+pub fn with_window(m: &Model, start: f64, end: f64) -> Model {
+    m.to_builder()
+        .window(Window { start, end })
+        .build()
+        .unwrap_or_else(|e| panic!("test model refused: {e}"))
+}
+
 /// Detuned Rabi formula, I. I. Rabi, Phys. Rev. 51, 652 (1937).
 pub fn rabi_formula(rabi: f64, delta: f64, t: f64) -> f64 {
     let w2 = rabi * rabi + delta * delta;
