@@ -20,8 +20,9 @@ use crate::model::Model;
 use crate::report::{self, InspectReport, Provenance, VetReport};
 use crate::solve::{self, Solution, SolveOptions};
 
-/// Largest accepted norm error |1 - sum P - lost| of a propagation; above it
-/// a run fails instead of reporting.
+/// Largest accepted norm error |1 - sum P - lost| of a propagation, and
+/// positivity defect of a density matrix; above it a run fails instead of
+/// reporting.
 pub const NORM_ERROR_LIMIT: f64 = 1e-6;
 
 /// Check a propagation before anything is reported from it.
@@ -40,6 +41,12 @@ pub fn check_solution(sol: &Solution) -> Result<(), Error> {
     if sol.norm_error > NORM_ERROR_LIMIT {
         return Err(Error::NormError {
             norm_error: sol.norm_error,
+            limit: NORM_ERROR_LIMIT,
+        });
+    }
+    if sol.positivity_error > NORM_ERROR_LIMIT {
+        return Err(Error::PositivityError {
+            defect: sol.positivity_error,
             limit: NORM_ERROR_LIMIT,
         });
     }

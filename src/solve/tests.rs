@@ -64,6 +64,8 @@ fn window_model(t: f64) -> Model {
         omega: 0.0,
         gamma: 0.0,
         tolerance: None,
+        decays_to: Vec::new(),
+        dephasing: 0.0,
     };
     Model::builder()
         .levels(vec![level("a"), level("b")])
@@ -81,7 +83,7 @@ fn an_equation_defined_outside_runs_on_both_steppers() {
     let (k, t) = (3.0e6, 1.0e-6);
     let model = window_model(t);
     let fh = FrameHamiltonian::build(&model).expect("frame");
-    let plan = plan::Plan::new(&model, &fh, 5);
+    let plan = plan::Plan::new(&model, &fh, 5, None);
     for method in [MethodUsed::Exact, MethodUsed::Adaptive] {
         for peaks in [true, false] {
             let opts = SolveOptions {

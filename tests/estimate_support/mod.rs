@@ -69,6 +69,8 @@ impl Builder {
             omega,
             gamma: 0.0,
             tolerance: None,
+            decays_to: Vec::new(),
+            dephasing: 0.0,
         });
         self.initial.push(0.0);
         self
@@ -107,6 +109,7 @@ impl Builder {
             phase: 0.0,
             rwa: true,
             peak_intensity: None,
+            linewidth: 0.0,
         });
         self
     }

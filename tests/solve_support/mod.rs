@@ -56,6 +56,8 @@ impl Builder {
             omega,
             gamma,
             tolerance: None,
+            decays_to: Vec::new(),
+            dephasing: 0.0,
         });
         self.initial.push(0.0);
         self
@@ -102,6 +104,7 @@ impl Builder {
             phase,
             rwa,
             peak_intensity: None,
+            linewidth: 0.0,
         });
         self
     }

@@ -73,6 +73,11 @@ impl Levels {
         Some((a, b))
     }
 
+    /// The index of a level id, without a message.
+    pub fn index_of(&self, id: &str) -> Option<usize> {
+        self.index.get(id).copied()
+    }
+
     /// The level ids in file order.
     pub fn ids(&self) -> &[String] {
         &self.ids
@@ -136,6 +141,8 @@ fn level(
         omega: 0.0,
         gamma: 0.0,
         tolerance: None,
+        decays_to: Vec::new(),
+        dephasing: 0.0,
     };
     let mut ok = false;
     let Some(l) = lvl else {
