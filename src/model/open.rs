@@ -14,8 +14,8 @@
 //! the coherence rho_jk decays at (1/2) sum_L (n_jL - n_kL)^2 w_L, i.e.
 //! pi (n_jL - n_kL)^2 FWHM_L with the FWHM in Hz.
 
-use super::{Dynamics, InitialKind, Model, Part, Readout};
 use super::builder::ModelError;
+use super::{Dynamics, InitialKind, Model, Part, Readout};
 
 /// Largest amount by which branching fractions may sum above 1.
 pub const BRANCHING_SUM_TOLERANCE: f64 = 1e-9;
@@ -65,11 +65,7 @@ pub fn phase_numbers(m: &Model) -> Result<PhaseNumbers, PhaseConflict> {
             });
         }
     }
-    let step = |f: usize| -> Vec<i64> {
-        (0..cols)
-            .map(|c| i64::from(fields[c] == f))
-            .collect()
-    };
+    let step = |f: usize| -> Vec<i64> { (0..cols).map(|c| i64::from(fields[c] == f)).collect() };
     for root in 0..n_levels {
         if n[root].is_some() {
             continue;
@@ -182,7 +178,11 @@ pub(super) fn check(m: &Model, out: &mut Vec<ModelError>) {
     let n = m.levels.len();
     for (i, l) in m.levels.iter().enumerate() {
         if !(l.dephasing.is_finite() && l.dephasing >= 0.0) {
-            invalid(out, Part::Level(i), "a dephasing rate that is not finite and >= 0");
+            invalid(
+                out,
+                Part::Level(i),
+                "a dephasing rate that is not finite and >= 0",
+            );
         }
         if l.decays_to.is_empty() {
             continue;
@@ -201,15 +201,25 @@ pub(super) fn check(m: &Model, out: &mut Vec<ModelError>) {
             sum += b;
         }
         if sum > 1.0 + BRANCHING_SUM_TOLERANCE {
-            invalid(out, Part::Level(i), format!("branching fractions summing to {sum} > 1"));
+            invalid(
+                out,
+                Part::Level(i),
+                format!("branching fractions summing to {sum} > 1"),
+            );
         }
     }
     for (i, f) in m.fields.iter().enumerate() {
         if !(f.linewidth.is_finite() && f.linewidth >= 0.0) {
-            invalid(out, Part::Field(i), "a linewidth that is not finite and >= 0");
+            invalid(
+                out,
+                Part::Field(i),
+                "a linewidth that is not finite and >= 0",
+            );
         }
     }
-    if m.fields.iter().any(|f| f.linewidth > 0.0) && m.drives.iter().all(|d| d.field < m.fields.len()) {
+    if m.fields.iter().any(|f| f.linewidth > 0.0)
+        && m.drives.iter().all(|d| d.field < m.fields.len())
+    {
         if let Err(c) = phase_numbers(m) {
             invalid(out, Part::Linewidth(c.field), c.reason);
         }

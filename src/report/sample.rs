@@ -45,6 +45,10 @@ pub(crate) fn vet_report() -> VetReport {
         tolerance: 1e-3,
         unreliable: false,
         remedy: None,
+        settled_population: None,
+        window_end_population: None,
+        scattered_photons: None,
+        readout_sensitive: false,
     };
     let e = LevelRow {
         id: "e".into(),
@@ -124,6 +128,11 @@ pub(crate) fn vet_report() -> VetReport {
                 peak_intensity: None,
             },
         ],
+        readout: crate::model::Readout::WindowEnd,
+        dynamics: crate::model::Dynamics::Amplitudes,
+        initial_kind: crate::model::InitialKind::Coherent,
+        initial_levels: 1,
+        scattered_photons: None,
     }
 }
 

@@ -10,7 +10,7 @@ use super::json_units;
 use super::safety::{safety_notes, SafetyNote};
 use super::{roles, Provenance, Role, SolverFacts};
 use crate::estimate::{self, Estimate, EstimateError, Order};
-use crate::model::Model;
+use crate::model::{Dynamics, InitialKind, Model, Readout};
 use crate::solve::Solution;
 use serde::ser::{SerializeStruct, Serializer};
 use serde::Serialize;
@@ -127,6 +127,21 @@ pub struct LevelRow {
     pub unreliable: bool,
     #[serde(skip_serializing_if = "Option::is_none")]
     pub remedy: Option<RemedyRow>,
+    /// Population after the window once every decay has run its course
+    /// (present whenever a level of the scheme decays).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub settled_population: Option<f64>,
+    /// Population at the window end, where the readout is elsewhere.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub window_end_population: Option<f64>,
+    /// Spontaneous emissions from this level inside the window per atom
+    /// (density-matrix runs).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub scattered_photons: Option<f64>,
+    /// The window-end and settled populations of this target or spectator
+    /// differ by more than its tolerance: where the readout is taken matters.
+    #[serde(skip_serializing_if = "std::ops::Not::not")]
+    pub readout_sensitive: bool,
 }
 
 impl LevelRow {
@@ -187,6 +202,23 @@ pub struct VetReport {
     pub title: Option<String>,
     #[serde(rename = "laser_safety")]
     pub safety: Vec<SafetyNote>,
+    /// When final populations are judged.
+    #[serde(serialize_with = "json_units::readout")]
+    pub readout: Readout,
+    /// The equation that ran.
+    #[serde(serialize_with = "json_units::dynamics")]
+    pub dynamics: Dynamics,
+    /// How the initial populations combine.
+    #[serde(rename = "initial_state", serialize_with = "json_units::initial_kind")]
+    pub initial_kind: InitialKind,
+    /// Whether the initial state has more than one populated level (the
+    /// text says how it was taken).
+    #[serde(skip)]
+    pub initial_levels: usize,
+    /// Expected spontaneous emissions per atom inside the window (present
+    /// in every density-matrix run).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub scattered_photons: Option<f64>,
 }
 
 impl VetReport {
@@ -195,12 +227,16 @@ impl VetReport {
         let top = [
             ("lost population", self.lost_population),
             ("norm error", self.norm_error),
+            ("scattered photons", self.scattered_photons.unwrap_or(0.0)),
         ];
         if let Some((name, _)) = top.iter().find(|(_, v)| !v.is_finite()) {
             return Some(name.to_string());
         }
         for l in &self.levels {
             let mut vals = vec![l.final_population, l.peak_population];
+            vals.extend(l.settled_population);
+            vals.extend(l.window_end_population);
+            vals.extend(l.scattered_photons);
             vals.extend(l.first_order);
             vals.extend(l.second_order);
             vals.extend(l.ratio);
@@ -313,6 +349,10 @@ pub fn vet(
             Some(e) if e > NEGLIGIBLE && fin > NEGLIGIBLE => Some(fin / e),
             _ => None,
         };
+        let settled = solution.settled_populations.as_ref().map(|p| p[k]);
+        let end = solution.window_end_populations[k];
+        let readout_sensitive = matches!(role, Role::Spectator | Role::Target)
+            && settled.is_some_and(|p| (p - end).abs() > tol);
         let remedy = if is_flagged {
             estimate::remedy(model, k, tol)?.map(|r| remedy_row(model, &r))
         } else {
@@ -337,6 +377,10 @@ pub fn vet(
             unreliable: role != Role::Initial && unreliable(shown, fin),
             sources: source_rows(model, est.order, &est.sources),
             remedy,
+            settled_population: settled,
+            window_end_population: (model.readout() != Readout::WindowEnd).then_some(end),
+            scattered_photons: solution.scattered_photons.as_ref().map(|p| p[k]),
+            readout_sensitive,
         });
     }
     let excluded = estimate
@@ -378,6 +422,11 @@ pub fn vet(
         goal: None,
         targets_short: 0,
         safety: safety_notes(model),
+        readout: model.readout(),
+        dynamics: solution.dynamics,
+        initial_kind: model.initial_kind(),
+        initial_levels: model.initial().iter().filter(|p| **p > 0.0).count(),
+        scattered_photons: solution.scattered_photons.as_ref().map(|p| p.iter().sum()),
     })
 }
 

@@ -60,12 +60,7 @@ fn envelope_stops(e: &Envelope) -> Vec<f64> {
 impl Plan {
     /// The stops of a run with `samples` samples and, where `readout` is a
     /// time before the window end, a recorded state there.
-    pub fn new(
-        model: &Model,
-        fh: &FrameHamiltonian,
-        samples: usize,
-        readout: Option<f64>,
-    ) -> Plan {
+    pub fn new(model: &Model, fh: &FrameHamiltonian, samples: usize, readout: Option<f64>) -> Plan {
         let (start, end) = (model.window.start, model.window.end);
         let span = end - start;
         let tol = MERGE_FRACTION * span;

@@ -15,11 +15,7 @@ use crate::model::{InitialKind, DEFAULT_TOLERANCE, POPULATION_SUM_TOLERANCE};
 /// The initial population of every level (0 where not given) and how they
 /// combine: the v1 forms (one id, or a map of populations: coherent), or
 /// `mixture:` / `superposition:` holding such a map.
-pub(super) fn initial(
-    raw: &RawScheme,
-    ctx: &mut Ctx,
-    levels: &Levels,
-) -> (Vec<f64>, InitialKind) {
+pub(super) fn initial(raw: &RawScheme, ctx: &mut Ctx, levels: &Levels) -> (Vec<f64>, InitialKind) {
     let ip = KeyPath::root().k("initial");
     let mut initial = vec![0.0; levels.list.len()];
     let expected = "a level id, a map of level id: population, or mixture: / superposition: \
@@ -56,6 +52,9 @@ pub(super) fn initial(
     (initial, InitialKind::Coherent)
 }
 
+/// A map of level id: population as written.
+type PopulationMap = Ordered<Option<Scalar>>;
+
 /// `mixture: {...}` or `superposition: {...}` as the only entry of the
 /// `initial:` map: its kind, its map (None where it is not a map, with a
 /// message) and its key path. None where the map is the v1 form.
@@ -63,7 +62,7 @@ fn explicit_form<'m>(
     ctx: &mut Ctx,
     ip: &KeyPath,
     m: &'m Ordered<InitialValue>,
-) -> Option<(InitialKind, Option<&'m Ordered<Option<Scalar>>>, KeyPath)> {
+) -> Option<(InitialKind, Option<&'m PopulationMap>, KeyPath)> {
     let is_form = |id: &Id, v: &InitialValue| {
         matches!(v, InitialValue::Map(_)) && matches!(id.0.as_str(), "mixture" | "superposition")
     };

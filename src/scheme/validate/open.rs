@@ -30,7 +30,12 @@ pub(super) fn level_keys(raw: &RawScheme, ctx: &mut Ctx, levels: &mut Levels) {
             continue;
         };
         let path = lp.k(&id.0);
-        if let Some(g) = ctx.quantity(&path.k("dephasing"), &lvl.dephasing, Kind::Damping, Sign::NonNegative) {
+        if let Some(g) = ctx.quantity(
+            &path.k("dephasing"),
+            &lvl.dephasing,
+            Kind::Damping,
+            Sign::NonNegative,
+        ) {
             levels.list[i].dephasing = g;
         }
         if let Some(map) = &lvl.decays_to {
@@ -87,7 +92,13 @@ fn decays_to(
             ok = false;
             continue;
         }
-        match ctx.bare(&p, fraction, "a branching fraction", |v| v > 0.0 && v <= 1.0, "in (0, 1]") {
+        match ctx.bare(
+            &p,
+            fraction,
+            "a branching fraction",
+            |v| v > 0.0 && v <= 1.0,
+            "in (0, 1]",
+        ) {
             Some(b) => out.push((k, b)),
             None => ok = false,
         }
@@ -110,7 +121,12 @@ pub(super) fn linewidths(ctx: &mut Ctx, field_ids: &FieldIds) -> Vec<f64> {
         .iter()
         .map(|(_, f, path)| {
             f.and_then(|f| {
-                ctx.quantity(&path.k("linewidth"), &f.linewidth, Kind::Frequency, Sign::NonNegative)
+                ctx.quantity(
+                    &path.k("linewidth"),
+                    &f.linewidth,
+                    Kind::Frequency,
+                    Sign::NonNegative,
+                )
             })
             .unwrap_or(0.0)
         })

@@ -8,9 +8,9 @@
 //! piecewise-constant stretch with the loss form Gamma. Must not: step,
 //! record, or decide which stepper runs.
 
+use super::frame::ScaledFrame;
 use crate::hamiltonian::FrameHamiltonian;
 use crate::model::Model;
-use super::frame::ScaledFrame;
 use crate::solve::equation::{Equation, Generator};
 use num_complex::Complex64;
 

@@ -30,6 +30,9 @@ pub const EXACT_MAX_LEVELS: usize = 8;
 
 const I: Complex64 = Complex64 { re: 0.0, im: 1.0 };
 
+/// A decaying level: (level, Gamma (1/s), branches (level, fraction), lost fraction).
+type Decay = (usize, f64, Vec<(usize, f64)>, f64);
+
 /// The density-matrix equation of one model in its frame.
 pub struct DensityMatrix<'a> {
     frame: ScaledFrame<'a>,
@@ -39,7 +42,7 @@ pub struct DensityMatrix<'a> {
     /// Unscaled damping (1/s), for the generator.
     damping_per_s: Vec<f64>,
     /// Per decaying level: (level, Gamma (1/s), branches (level, fraction), lost fraction).
-    decays: Vec<(usize, f64, Vec<(usize, f64)>, f64)>,
+    decays: Vec<Decay>,
 }
 
 impl<'a> DensityMatrix<'a> {
@@ -78,7 +81,6 @@ impl<'a> DensityMatrix<'a> {
     fn lost_index(&self) -> usize {
         2 * self.frame.n * self.frame.n
     }
-
 }
 
 #[inline]
@@ -213,8 +215,10 @@ impl Equation for DensityMatrix<'_> {
         let idx = |j: usize, k: usize| j * n + k;
         let mut diag = vec![(0.0, 0.0); n];
         let mut elems = Vec::new();
-        self.frame
-            .stretch_elements(|k, d, hg| diag[k] = (d, hg), |a, b, h| elems.push((a, b, h)));
+        self.frame.stretch_elements(
+            |k, d, hg| diag[k] = (d, hg),
+            |a, b, h| elems.push((a, b, h)),
+        );
         for j in 0..n {
             for k in 0..n {
                 let w = diag[j].0 - diag[k].0;
