@@ -18,6 +18,8 @@ Set-up (pinned versions; the script refuses other versions unless
     /tmp/qv/bin/pip install qutip==5.3.1 numpy==2.4.6 scipy==1.17.1 sympy==1.14.0
     /tmp/qv/bin/python scripts/open_reference.py            # writes the fixtures
     /tmp/qv/bin/python scripts/open_reference.py --check    # recomputes, compares, writes nothing
+    /tmp/qv/bin/python scripts/open_reference.py --against-v1 target/release/levelplan
+        # conventions check: the schemes without their v2 keys against levelplan v1
 
 Model (the conventions of docs/physics.md and docs/scheme-format.md, and the
 "Open systems" section of scheme contract v2). Everything is SI, angular
@@ -1045,6 +1047,59 @@ def analytic():
 # --------------------------------------------------------------------------
 
 
+def v1_variant(s: Scheme):
+    """The scheme without its contract-v2 keys: every decay leaves the scheme
+    (amplitude damping), no dephasing, no laser linewidth, a pure initial
+    state (the most populated level of a mixture), window-end readout. For a
+    pure initial state whose every decay goes to the sink, the Lindblad
+    populations are those of the no-jump (amplitude-damped) evolution, which
+    levelplan v1 already computes: so this variant checks the frame,
+    detuning signs, envelopes and Rabi conventions of this script against the
+    binary as it is today."""
+    import dataclasses
+
+    levels = [dataclasses.replace(lv, decays_to=None, dephasing=None) for lv in s.levels]
+    fields = [dataclasses.replace(f, linewidth=None) for f in s.fields]
+    init = s.initial
+    if not isinstance(init, str):
+        init = max(init[1], key=lambda k: init[1][k])
+    extra = {k: v for k, v in s.solver_extra.items() if k != "dynamics"}
+    return dataclasses.replace(s, name=s.name + "_v1", levels=levels, fields=fields,
+                               initial=init, readout=None, solver_extra=extra,
+                               targets=[t for t in s.targets if t != init])
+
+
+def against_v1(binary):
+    """Runs the v1 variants through `binary vet --format json` and compares
+    the final and lost populations with this script's model."""
+    import subprocess
+    import tempfile
+
+    worst = 0.0
+    for s in schemes():
+        v = v1_variant(s)
+        m = Model(v)
+        at, _, _ = solve_qutip(m, points=201)
+        end = at[m.t1]
+        with tempfile.TemporaryDirectory() as d:
+            path = Path(d) / f"{v.name}.yaml"
+            path.write_text(yaml_text(v))
+            out = subprocess.run([binary, "vet", str(path), "--format", "json"],
+                                 capture_output=True, text=True)
+        if out.returncode not in (0, 3):
+            raise SystemExit(f"{v.name}: exit {out.returncode}\n{out.stderr}")
+        rep = json.loads(out.stdout)
+        diffs = {lv["id"]: lv["final_population"] - float(end[m.idx[lv["id"]]])
+                 for lv in rep["levels"]}
+        diffs["lost"] = rep["lost_population"] - float(end[m.idx["lost"]])
+        d = max(abs(x) for x in diffs.values())
+        worst = max(worst, d)
+        print(f"{v.name}: largest |levelplan v1 - this model| = {d:.3e}  {diffs}")
+    if worst > 1e-7:
+        raise SystemExit(f"the v1 variants disagree with levelplan by {worst:.3e}")
+    print(f"v1 variants agree with levelplan to {worst:.3e}")
+
+
 def dump(obj):
     return json.dumps(obj, indent=2) + "\n"
 
@@ -1054,7 +1109,13 @@ def main():
     ap.add_argument("--check", action="store_true",
                     help="recompute and compare with the files; write nothing")
     ap.add_argument("--allow-other-versions", action="store_true")
+    ap.add_argument("--against-v1", metavar="BINARY",
+                    help=("check this script's conventions: solve the schemes without their "
+                          "v2 keys (amplitude damping) and compare with `BINARY vet`; "
+                          "write nothing"))
     args = ap.parse_args()
+    if args.against_v1:
+        return against_v1(args.against_v1)
     v = versions()
     bad = {k: (v[k], p) for k, p in PINNED.items() if v[k] != p}
     if bad and not args.allow_other_versions:
