@@ -63,6 +63,7 @@ from the augmented block matrix [[L, 0], [1, 0]] (C. Van Loan, IEEE Trans.
 Autom. Control 23, 395 (1978)), or by scipy's DOP853 where an envelope varies.
 """
 import argparse
+import dataclasses
 import json
 import math
 import platform
@@ -261,7 +262,8 @@ def yaml_text(s):
 
 
 def schemes():
-    """The five open-system fixtures (invented numbers)."""
+    """The five open-system fixtures (invented numbers), and scheme c again
+    with readout: settled."""
     a = Scheme(
         name="a_two_level_steady",
         title="two-level approach to the steady state (invented)",
@@ -393,7 +395,16 @@ def schemes():
                  "450 ns", "500 ns", "550 ns", "600 ns"],
         solver_extra={"dynamics": "density_matrix"},
     )
-    return [a, b, c, d, e]
+    c_settled = dataclasses.replace(
+        c,
+        name="c_dephasing_partial_decay_settled",
+        title="two-level with pure dephasing and an open decay, settled readout (invented)",
+        comment=c.comment + (
+            "\nreadout: settled -- final populations are judged after the window, drives\n"
+            "off, once e has decayed (70 % of it to g, 30 % lost)."),
+        readout="settled",
+    )
+    return [a, b, c, c_settled, d, e]
 
 
 # --------------------------------------------------------------------------
@@ -804,8 +815,13 @@ def reference(s: Scheme):
         "tolerance_abs": 1e-6,
         "dynamics": "density_matrix",
         "readout": s.readout or "window_end",
-        "final_population": final,
-        "lost_population": float(end[m.idx["lost"]]),
+        # At the readout: the window end, or (readout: settled) relaxed.
+        "final_population": ({k: settled[k] for k in final} if s.readout == "settled"
+                             else final),
+        "lost_population": (settled["lost"] if s.readout == "settled"
+                            else float(end[m.idx["lost"]])),
+        "window_end_population": final,
+        "window_end_lost_population": float(end[m.idx["lost"]]),
         "settled_population": {k: settled[k] for k in m.ids if k != "lost"},
         "settled_lost_population": settled["lost"],
         "scattered_photons": sum(photons_q.values()),

@@ -27,6 +27,7 @@ const FIXTURES: &[&str] = &[
     "a_two_level_steady",
     "b_lambda_pumping",
     "c_dephasing_partial_decay",
+    "c_dephasing_partial_decay_settled",
     "d_laser_linewidth_gaussian",
     "e_ladder_mixture_cascade",
 ];
@@ -212,6 +213,14 @@ fn lambda_optical_pumping_with_branching() {
 #[test]
 fn pure_dephasing_and_a_partly_lost_decay() {
     check_fixture("c_dephasing_partial_decay");
+}
+
+/// The same scheme judged with `readout: settled`: final populations and the
+/// lost population after the decay has run its course, photons still
+/// counted inside the window.
+#[test]
+fn settled_readout_after_a_partly_lost_decay() {
+    check_fixture("c_dephasing_partial_decay_settled");
 }
 
 #[test]
