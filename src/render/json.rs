@@ -53,6 +53,9 @@ mod tests {
                 "provenance",
                 "title",
                 "laser_safety",
+                "readout",
+                "dynamics",
+                "initial_state",
             ]
         );
         assert_eq!(v["window_s"], serde_json::json!([0.0, 2e-7]));

@@ -351,7 +351,11 @@ pub fn vet(
         };
         let settled = solution.settled_populations.as_ref().map(|p| p[k]);
         let end = solution.window_end_populations[k];
-        let readout_sensitive = matches!(role, Role::Spectator | Role::Target)
+        // Amplitude runs (v1) lose every decay from the scheme: their
+        // settled populations say nothing a planner reads off, so only
+        // density-matrix runs are judged for it.
+        let readout_sensitive = solution.dynamics == Dynamics::DensityMatrix
+            && matches!(role, Role::Spectator | Role::Target)
             && settled.is_some_and(|p| (p - end).abs() > tol);
         let remedy = if is_flagged {
             estimate::remedy(model, k, tol)?.map(|r| remedy_row(model, &r))

@@ -8,6 +8,7 @@ use super::{
     method_name, numfmt, order_name, provenance_meta, safety_section, table, window_meta, Align,
     Cell, Doc, Mark, Section, MODEL_TEXT, TWO_PI,
 };
+use crate::model::{Dynamics, InitialKind, Readout};
 use crate::report::{LevelRow, RemedyRow, Role, VetReport};
 
 fn status_cell(row: &LevelRow) -> Cell {
@@ -114,13 +115,54 @@ fn levels_section(r: &VetReport) -> Section {
         &[Left, Left, Right, Right, Right, Left, Right, Right, Left],
         rows,
     );
+    let mut notes = vec![
+        "final and peak: exact propagation; estimate: perturbation theory of the stated order from the initial populations; LEAK: spectator above its tolerance; est?: estimate above 0.1 or off the exact value by more than a factor 2.".into(),
+    ];
+    notes.extend(open_notes(r));
     Section {
         heading: "Populations at the end of the window".into(),
         table: Some(levels),
-        notes: vec![
-            "final and peak: exact propagation; estimate: perturbation theory of the stated order from the initial populations; LEAK: spectator above its tolerance; est?: estimate above 0.1 or off the exact value by more than a factor 2.".into(),
-        ],
+        notes,
     }
+}
+
+/// Notes on the open-system side of a run: where "final" is read, the
+/// equation, the photons scattered, an initial superposition, and levels
+/// whose window-end and settled populations differ beyond tolerance.
+fn open_notes(r: &VetReport) -> Vec<String> {
+    let mut notes = Vec::new();
+    match r.readout {
+        Readout::WindowEnd => {}
+        Readout::Settled => notes.push(
+            "readout settled: final is taken after the window, drives off, once every decay has run its course (rate equations, exact).".into(),
+        ),
+        Readout::At(t) => notes.push(format!(
+            "readout at {}: final is taken there, inside the window.",
+            numfmt::time(t).plain()
+        )),
+    }
+    if r.dynamics == Dynamics::DensityMatrix {
+        let photons = r.scattered_photons.unwrap_or(0.0);
+        notes.push(format!(
+            "dynamics: Lindblad master equation for the density matrix; {} spontaneous emissions per atom inside the window.",
+            numfmt::sci(photons, 3, "").plain()
+        ));
+    }
+    if r.initial_kind == InitialKind::Coherent && r.initial_levels > 1 {
+        notes.push(
+            "initial: the populations are taken as a coherent superposition (amplitudes sqrt(p), phase 0); write initial: {mixture: {...}} for an incoherent mixture.".into(),
+        );
+    }
+    for l in r.levels.iter().filter(|l| l.readout_sensitive) {
+        let end = l.window_end_population.unwrap_or(l.final_population);
+        notes.push(format!(
+            "{}: {} at the window end but {} settled: the readout time matters for this level.",
+            l.id,
+            numfmt::population(end).plain(),
+            numfmt::population(l.settled_population.unwrap_or(end)).plain()
+        ));
+    }
+    notes
 }
 
 /// The leaks with the drives that feed them, and the remedies.
