@@ -3,12 +3,11 @@
 //! Owns: [`ModelBuilder`], [`ModelError`] and the invariants every model
 //! keeps (finite numbers, indices in range, couplings ordered by energy,
 //! populations summing to 1, targets not initially populated, one drive per
-//! field and level pair, envelopes with a duration, a window that ends
-//! after it starts, positive finite solver tolerances). These are the only
-//! consistency checks of a model: the Hamiltonian assembly, the propagators
-//! and the estimator rely on them and check only the numbers they compute. Scheme validation ends here too: it reports the
-//! problems of a file with their place in it first, then hands the parts to
-//! this builder, so a model passes these checks whichever way it was made.
+//! field and level pair, envelopes with a duration, a window that ends after
+//! it starts, positive finite solver tolerances; the open-system parts in
+//! `open.rs`): the only consistency checks of a model, which later stages
+//! rely on. Scheme validation reports a file's problems with their place
+//! first, then hands the parts here.
 //!
 //! Must not: know of strings with units, of the scheme format's limits
 //! (level and drive counts, time magnitudes: those are the file format's),
@@ -166,13 +165,12 @@ impl ModelBuilder {
         self.initial = Some(populations);
         self
     }
-    /// Whether the initial populations are a coherent superposition
-    /// (the default) or a mixture.
+    /// How the initial populations combine (default: coherently).
     pub fn initial_kind(mut self, kind: InitialKind) -> Self {
         self.initial_kind = kind;
         self
     }
-    /// When final populations are judged (default: the window end).
+    /// When final populations are judged (default: window end).
     pub fn readout(mut self, readout: Readout) -> Self {
         self.readout = readout;
         self
