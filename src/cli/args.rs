@@ -133,10 +133,11 @@ pub struct JobsArg {
 /// The step budget of every propagation a command runs.
 #[derive(Debug, Args)]
 pub struct StepBudgetArg {
-    /// Most steps (adaptive: accepted and rejected; exact: segments) one propagation may
-    /// take before it stops with exit status 1 (a whole number >= 1). Raise it for a long
-    /// window with a fast time scale; a larger budget changes no result, only how long a
-    /// run may take.
+    /// Most steps (adaptive: accepted and rejected; exact: segments and peak sub-steps) one
+    /// propagation may take (a whole number >= 1); a run that needs more stops with exit
+    /// status 1, except that the exact propagator samples peak populations more coarsely
+    /// instead (final populations stay exact). Raise it for a long window with a fast time
+    /// scale.
     #[arg(
         long,
         value_name = "N",
