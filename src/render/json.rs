@@ -137,6 +137,22 @@ mod tests {
     }
 
     #[test]
+    fn a_remedy_not_checked_adds_one_key_after_the_others() {
+        let (_, v) = json(&sample::vet_report_with_unchecked_remedy());
+        let remedy = &v["levels"][2]["remedy"];
+        let k = keys(remedy);
+        assert_eq!(k.len(), 11);
+        assert_eq!(&k[9..], ["exact_population_at_length", "not_checked"]);
+        assert_eq!(
+            remedy["not_checked"],
+            serde_json::json!([{
+                "check": "blackman",
+                "reason": "the run needs more than 10 steps; raise SolveOptions::step_budget"
+            }])
+        );
+    }
+
+    #[test]
     fn inspect_keys_and_units() {
         let (_, v) = json(&sample::inspect_report());
         assert_eq!(

@@ -86,6 +86,7 @@ pub(crate) fn vet_report() -> VetReport {
             exact_gaussian: Some(1.1e-9),
             exact_blackman: None,
             exact_at_length: Some(4e-4),
+            not_checked: Vec::new(),
         }),
         ..g.clone()
     };
@@ -134,6 +135,18 @@ pub(crate) fn vet_report() -> VetReport {
         initial_levels: 1,
         scattered_photons: None,
     }
+}
+
+/// [`vet_report`] with the Blackman check of the leak's remedy not run,
+/// and why (a reason with LaTeX specials).
+pub(crate) fn vet_report_with_unchecked_remedy() -> VetReport {
+    let mut r = vet_report();
+    let remedy = r.levels[2].remedy.as_mut().expect("s has a remedy");
+    remedy.not_checked.push(UncheckedRemedy::new(
+        RemedyCheck::Blackman,
+        "the run needs more than 10 steps; raise SolveOptions::step_budget",
+    ));
+    r
 }
 
 /// An inspect report with two levels, one drive and one field.

@@ -4,7 +4,7 @@
 //!
 //! Owns: [`VetReport`] and its rows, [`vet`], [`judge_targets`], the
 //! reliability rule. Must not: run a propagator (the exact checks of the
-//! remedies are filled in by the app), format numbers.
+//! remedies are filled in by the pipeline), format numbers.
 
 use super::json_units;
 use super::safety::{safety_notes, SafetyNote};
@@ -87,13 +87,62 @@ pub struct RemedyRow {
     #[serde(rename = "fwhm_s")]
     pub fwhm: f64,
     /// The same three remedies checked by exact propagation (filled by the
-    /// app, which runs the propagator; None where not checked).
+    /// pipeline, which runs the propagator; None where not checked).
     #[serde(rename = "exact_gaussian_population")]
     pub exact_gaussian: Option<f64>,
     #[serde(rename = "exact_blackman_population")]
     pub exact_blackman: Option<f64>,
     #[serde(rename = "exact_population_at_length")]
     pub exact_at_length: Option<f64>,
+    /// The exact checks that could not be run (the changed scheme failed to
+    /// propagate or was refused), each with its reason; their `exact_*`
+    /// value stays None. No key when every check ran or none was asked for.
+    #[serde(skip_serializing_if = "Vec::is_empty")]
+    pub not_checked: Vec<UncheckedRemedy>,
+}
+
+/// Which of a remedy's three changed schemes an exact check concerns.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "snake_case")]
+#[non_exhaustive]
+pub enum RemedyCheck {
+    /// The Gaussian envelope of the same area and intensity FWHM.
+    Gaussian,
+    /// The Blackman envelope of the same area and intensity FWHM.
+    Blackman,
+    /// The present shape lengthened to `length_for_tolerance`.
+    AtLength,
+}
+
+impl RemedyCheck {
+    /// The name of the check as the JSON value spells it.
+    pub fn as_str(self) -> &'static str {
+        match self {
+            RemedyCheck::Gaussian => "gaussian",
+            RemedyCheck::Blackman => "blackman",
+            RemedyCheck::AtLength => "at_length",
+        }
+    }
+}
+
+/// A remedy's exact check that could not be run, and why. The report is
+/// still given: a remedy is advice beside the result, never the result.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+#[non_exhaustive]
+pub struct UncheckedRemedy {
+    pub check: RemedyCheck,
+    /// The error of the changed scheme's run, as the CLI would print it.
+    pub reason: String,
+}
+
+impl UncheckedRemedy {
+    /// The check `check` was not run because of `reason`.
+    pub fn new(check: RemedyCheck, reason: impl Into<String>) -> Self {
+        UncheckedRemedy {
+            check,
+            reason: reason.into(),
+        }
+    }
 }
 
 /// One level's line of the vet report.
@@ -315,6 +364,7 @@ fn remedy_row(model: &Model, r: &estimate::Remedy) -> RemedyRow {
         exact_gaussian: None,
         exact_blackman: None,
         exact_at_length: None,
+        not_checked: Vec::new(),
     }
 }
 

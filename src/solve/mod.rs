@@ -130,7 +130,7 @@ pub struct Solution {
 /// Why a propagation failed.
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]
 pub enum SolveError {
-    #[error("the run needs more than {budget} steps: the fastest time scale is {period_s:.3e} s, set by {cause}; shorten the window, or lower solver.detuning_cutoff to leave that drive out (library callers may raise SolveOptions::step_budget)")]
+    #[error("the run needs more than {budget} steps: the fastest time scale is {period_s:.3e} s, set by {cause}; shorten the window, lower solver.detuning_cutoff to leave that drive out, or raise the budget (--step-budget N on the command line, SolveOptions::step_budget in the library)")]
     StepBudget {
         budget: u64,
         period_s: f64,

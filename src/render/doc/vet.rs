@@ -9,7 +9,7 @@ use super::{
     Cell, Doc, Mark, Section, MODEL_TEXT, TWO_PI,
 };
 use crate::model::{Dynamics, InitialKind, Readout};
-use crate::report::{LevelRow, RemedyRow, Role, VetReport};
+use crate::report::{LevelRow, RemedyCheck, RemedyRow, Role, VetReport};
 
 fn status_cell(row: &LevelRow) -> Cell {
     let mut words = Vec::new();
@@ -217,12 +217,16 @@ fn leak_sections(r: &VetReport) -> Vec<Section> {
     sections
 }
 
-/// The remedy sentence of a flagged level.
+/// The remedy sentence of a flagged level: each exact check in brackets,
+/// or the reason it could not be run.
 fn remedy_text(l: &LevelRow, m: &RemedyRow) -> String {
-    let exact = |x: Option<f64>| {
-        x.map_or_else(String::new, |v| {
-            format!(" (exact {})", numfmt::population(v).plain())
-        })
+    let exact = |x: Option<f64>, check: RemedyCheck| match x {
+        Some(v) => format!(" (exact {})", numfmt::population(v).plain()),
+        None => m
+            .not_checked
+            .iter()
+            .find(|u| u.check == check)
+            .map_or_else(String::new, |u| format!(" (not checked: {})", u.reason)),
     };
     let length = match m.length_for_tolerance {
         Some(t) => format!(
@@ -231,7 +235,7 @@ fn remedy_text(l: &LevelRow, m: &RemedyRow) -> String {
             numfmt::time(t).plain(),
             numfmt::time(m.present_length).plain(),
             numfmt::population(l.tolerance).plain(),
-            exact(m.exact_at_length)
+            exact(m.exact_at_length, RemedyCheck::AtLength)
         ),
         None => format!(
             "no {} pulse length within 1e4 of the present one reaches {}",
@@ -245,9 +249,9 @@ fn remedy_text(l: &LevelRow, m: &RemedyRow) -> String {
         m.field,
         numfmt::time(m.fwhm).plain(),
         numfmt::population(m.gaussian_same_area).plain(),
-        exact(m.exact_gaussian),
+        exact(m.exact_gaussian, RemedyCheck::Gaussian),
         numfmt::population(m.blackman_same_area).plain(),
-        exact(m.exact_blackman),
+        exact(m.exact_blackman, RemedyCheck::Blackman),
         length
     )
 }
