@@ -16,13 +16,18 @@ const LIFETIME: f64 = 25e-9;
 const DETUNING_HZ: f64 = -40e6;
 
 fn lambda_text(rabi_mhz: f64, duration_us: f64) -> String {
+    broadened_text(rabi_mhz, duration_us, "", "")
+}
+
+/// The Lambda with extra keys on e and on the probe (dephasing, linewidth).
+fn broadened_text(rabi_mhz: f64, duration_us: f64, e_extra: &str, probe_extra: &str) -> String {
     format!(
         r#"
 title: weak-field optical pumping in a Lambda (illustrative numbers)
 levels:
   g1: {{ energy: "0 MHz" }}
   g2: {{ energy: "6800 MHz" }}
-  e:  {{ energy: "384000000 MHz", lifetime: "25 ns", decays_to: {{ g1: 0.5, g2: 0.5 }} }}
+  e:  {{ energy: "384000000 MHz", lifetime: "25 ns", decays_to: {{ g1: 0.5, g2: 0.5 }}{e_extra} }}
 initial: g1
 tolerance: 1e-2
 couplings:
@@ -31,7 +36,7 @@ fields:
   probe:
     tuned: {{ to: [g1, e], detuning: "-40 MHz" }}
     rabi: {{ on: [g1, e], value: "{rabi_mhz} MHz" }}
-    envelope: {{ shape: rectangular, start: "0 us", duration: "{duration_us} us" }}
+    envelope: {{ shape: rectangular, start: "0 us", duration: "{duration_us} us" }}{probe_extra}
 "#
     )
 }
@@ -168,4 +173,33 @@ fn saturated_pumping_is_marked_unreliable() {
     let text = String::from_utf8(export(&r, Format::Text).unwrap()).unwrap();
     assert!(text.contains("est?"), "{text}");
     assert!(text.contains("g1, via e by decay"), "{text}");
+}
+
+/// A laser linewidth and a pure dephasing broaden the line at fixed area:
+/// G = Gamma + 2 dephasing + w_L in the Lorentzian (the weak-drive steady
+/// state of the density-matrix equation; common practice, no source). The
+/// exact pumping rate (2 us minus 1 us, transients cancelled) agrees.
+#[test]
+fn dephasing_and_linewidth_broaden_the_rate() {
+    let e_extra = r#", dephasing: "5e6 s^-1""#;
+    let probe_extra = "\n    linewidth: \"2 MHz\"";
+    let rabi = 0.35;
+    let (r1, r2) = (
+        vet(&broadened_text(rabi, 1.0, e_extra, probe_extra)),
+        vet(&broadened_text(rabi, 2.0, e_extra, probe_extra)),
+    );
+    let (e1, e2) = (level(&r1, "g2"), level(&r2, "g2"));
+    let omega = 2.0 * PI * rabi * 1e6;
+    let width = 1.0 / LIFETIME + 2.0 * 5e6 + 2.0 * PI * 2e6;
+    let delta = 2.0 * PI * DETUNING_HZ;
+    let want = (omega * omega / width) / (1.0 + (2.0 * delta / width).powi(2)) * 1e-6 * 0.5;
+    let est = e1.first_order.unwrap();
+    assert!((est - want).abs() <= 1e-8 * want, "{est:e} vs {want:e}");
+    let exact_slope = e2.final_population - e1.final_population;
+    let est_slope = e2.first_order.unwrap() - est;
+    let rel = exact_slope / est_slope - 1.0;
+    println!(
+        "broadened: per-us pumping exact {exact_slope:e} estimate {est_slope:e} (relative {rel:e})"
+    );
+    assert!(rel.abs() < 2e-3, "relative difference {rel:e}");
 }
