@@ -23,6 +23,9 @@ fn source(field: &str, from: &str, detuning_mhz: f64, order: Order, population: 
         population,
         order,
         included: true,
+        channel: Channel::Drive,
+        via: None,
+        saturation: None,
     }
 }
 

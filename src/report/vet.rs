@@ -42,25 +42,50 @@ pub struct SourceRow {
     pub order: Order,
     /// Whether this drive is in the dynamics (false: beyond the cutoff).
     pub included: bool,
+    /// How the population arrives: by the drive itself, or by decay of
+    /// `via` after the drive excites it.
+    pub channel: Channel,
+    /// The decaying level of a decay source.
+    pub via: Option<String>,
+    /// Saturation parameter of the drive on `from -> via` (decay sources).
+    pub saturation: Option<f64>,
+}
+
+/// How a source's population arrives.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[non_exhaustive]
+pub enum Channel {
+    /// Coherently, by the drive (perturbation theory).
+    Drive,
+    /// By spontaneous emission from a level the drive excites (rate estimate).
+    Decay,
 }
 
 /// Written by hand because the population's key depends on a value:
 /// `second_order_population` for a second-order source,
 /// `first_order_population` otherwise (derive only knows fixed names).
 /// `order` itself is not a key (the level states it as `estimate_order`).
+/// A decay source adds `via`, `channel` ("decay") and `saturation` after
+/// the drive keys; a drive source has exactly the v1 keys.
 impl Serialize for SourceRow {
     fn serialize<S: Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
         let population_key = match self.order {
             Order::Second => "second_order_population",
             _ => "first_order_population",
         };
-        let mut m = s.serialize_struct("SourceRow", 6)?;
+        let decay = self.channel == Channel::Decay;
+        let mut m = s.serialize_struct("SourceRow", if decay { 9 } else { 6 })?;
         m.serialize_field("field", &self.field)?;
         m.serialize_field("from", &self.from)?;
         m.serialize_field("detuning_mhz", &json_units::Mhz(self.detuning))?;
         m.serialize_field("rabi_mhz", &json_units::Mhz(self.rabi))?;
         m.serialize_field(population_key, &self.population)?;
         m.serialize_field("in_dynamics", &self.included)?;
+        if decay {
+            m.serialize_field("via", &self.via)?;
+            m.serialize_field("channel", "decay")?;
+            m.serialize_field("saturation", &self.saturation)?;
+        }
         m.end()
     }
 }
@@ -294,6 +319,7 @@ impl VetReport {
                     .iter()
                     .flat_map(|s| [s.detuning, s.rabi, s.population]),
             );
+            vals.extend(l.sources.iter().filter_map(|s| s.saturation));
             if let Some(r) = &l.remedy {
                 vals.extend([r.gaussian_same_area, r.blackman_same_area, r.present_length]);
                 vals.extend(r.length_for_tolerance);
@@ -316,22 +342,41 @@ impl VetReport {
     }
 }
 
-fn source_rows(model: &Model, order: Order, sources: &[estimate::Source]) -> Vec<SourceRow> {
-    sources
+/// The drive sources, then the decay sources, together largest first (a
+/// stable sort: drive sources keep their order among themselves).
+fn source_rows(model: &Model, est: &estimate::LevelEstimate) -> Vec<SourceRow> {
+    let order = est.order;
+    let row = |drive: usize, from: usize, detuning: f64, rabi: f64, population: f64| {
+        let d = &model.drives[drive];
+        SourceRow {
+            field: model.fields[d.field].id.clone(),
+            from: model.levels[from].id.clone(),
+            detuning,
+            rabi,
+            population,
+            order,
+            included: model.drive_included(d),
+            channel: Channel::Drive,
+            via: None,
+            saturation: None,
+        }
+    };
+    let mut rows: Vec<SourceRow> = est
+        .sources
         .iter()
-        .map(|s| {
-            let d = &model.drives[s.drive];
-            SourceRow {
-                field: model.fields[d.field].id.clone(),
-                from: model.levels[s.from].id.clone(),
-                detuning: s.detuning,
-                rabi: s.rabi,
-                population: s.population,
-                order,
-                included: model.drive_included(d),
-            }
-        })
-        .collect()
+        .map(|s| row(s.drive, s.from, s.detuning, s.rabi, s.population))
+        .collect();
+    if est.decay_sources.is_empty() {
+        return rows;
+    }
+    rows.extend(est.decay_sources.iter().map(|s| SourceRow {
+        channel: Channel::Decay,
+        via: Some(model.levels[s.via].id.clone()),
+        saturation: Some(s.saturation),
+        ..row(s.drive, s.from, s.detuning, s.rabi, s.population)
+    }));
+    rows.sort_by(|a, b| b.population.total_cmp(&a.population));
+    rows
 }
 
 fn unreliable(estimate: Option<f64>, exact: f64) -> bool {
@@ -428,8 +473,8 @@ pub fn vet(
             tolerance: tol,
             flagged: is_flagged,
             below_goal: false,
-            unreliable: role != Role::Initial && unreliable(shown, fin),
-            sources: source_rows(model, est.order, &est.sources),
+            unreliable: role != Role::Initial && (unreliable(shown, fin) || !est.decay_reliable()),
+            sources: source_rows(model, est),
             remedy,
             settled_population: settled,
             window_end_population: (model.readout() != Readout::WindowEnd).then_some(end),

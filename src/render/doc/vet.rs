@@ -9,7 +9,7 @@ use super::{
     Cell, Doc, Mark, Section, MODEL_TEXT, TWO_PI,
 };
 use crate::model::{Dynamics, InitialKind, Readout};
-use crate::report::{LevelRow, RemedyCheck, RemedyRow, Role, VetReport};
+use crate::report::{Channel, LevelRow, RemedyCheck, RemedyRow, Role, SourceRow, VetReport};
 
 fn status_cell(row: &LevelRow) -> Cell {
     let mut words = Vec::new();
@@ -115,9 +115,7 @@ fn levels_section(r: &VetReport) -> Section {
         &[Left, Left, Right, Right, Right, Left, Right, Right, Left],
         rows,
     );
-    let mut notes = vec![
-        "final and peak: exact propagation; estimate: perturbation theory of the stated order from the initial populations; LEAK: spectator above its tolerance; est?: estimate above 0.1 or off the exact value by more than a factor 2.".into(),
-    ];
+    let mut notes = level_notes(r);
     notes.extend(open_notes(r));
     Section {
         heading: "Populations at the end of the window".into(),
@@ -165,6 +163,24 @@ fn open_notes(r: &VetReport) -> Vec<String> {
     notes
 }
 
+/// The notes under the level table; the decay note only where a level is
+/// fed by decay.
+fn level_notes(r: &VetReport) -> Vec<String> {
+    let mut notes = vec![
+        "final and peak: exact propagation; estimate: perturbation theory of the stated order from the initial populations; LEAK: spectator above its tolerance; est?: estimate above 0.1 or off the exact value by more than a factor 2.".into(),
+    ];
+    let decay_fed = r
+        .levels
+        .iter()
+        .any(|l| l.sources.iter().any(|s| s.channel == Channel::Decay));
+    if decay_fed {
+        notes.push(
+            "estimates include population arriving by decay (weak-drive scattering rate); est? also marks a saturated drive (s > 0.1), a depleted initial level (> 0.1) or a pulse not long against the line's coherence time.".into(),
+        );
+    }
+    notes
+}
+
 /// The leaks with the drives that feed them, and the remedies.
 fn leak_sections(r: &VetReport) -> Vec<Section> {
     use Align::*;
@@ -177,7 +193,7 @@ fn leak_sections(r: &VetReport) -> Vec<Section> {
             leak_rows.push(vec![
                 Cell::text(&l.id).marked(Mark::Alert),
                 Cell::text(&s.field),
-                Cell::text(&s.from),
+                Cell::text(&source_from(s)),
                 Cell::num(numfmt::frequency(s.detuning / TWO_PI, true)),
                 Cell::num(numfmt::frequency(s.rabi / TWO_PI, false)),
                 Cell::num(numfmt::population(s.population)),
@@ -215,6 +231,15 @@ fn leak_sections(r: &VetReport) -> Vec<Section> {
         }
     }
     sections
+}
+
+/// The "from" cell of a source: the level, and for a decay source the
+/// decaying level the drive excites ("g1, via e by decay").
+fn source_from(s: &SourceRow) -> String {
+    match (&s.channel, &s.via) {
+        (Channel::Decay, Some(via)) => format!("{}, via {via} by decay", s.from),
+        _ => s.from.clone(),
+    }
 }
 
 /// The remedy sentence of a flagged level: each exact check in brackets,
