@@ -441,15 +441,7 @@ mod tests {
     use crate::model::{Dipole, Envelope};
 
     fn two_level() -> ModelBuilder {
-        let level = |id: &str, omega| Level {
-            id: id.into(),
-            label: None,
-            omega,
-            gamma: 0.0,
-            tolerance: None,
-            decays_to: Vec::new(),
-            dephasing: 0.0,
-        };
+        let level = |id: &str, omega| Level::new(id, omega);
         Model::builder()
             .level(level("g", 0.0))
             .level(level("e", 1e9))

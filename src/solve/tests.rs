@@ -58,15 +58,7 @@ impl Equation for Transfer {
 
 /// A model that only sets the window [0, t] (two undriven levels).
 fn window_model(t: f64) -> Model {
-    let level = |id: &str| Level {
-        id: id.into(),
-        label: None,
-        omega: 0.0,
-        gamma: 0.0,
-        tolerance: None,
-        decays_to: Vec::new(),
-        dephasing: 0.0,
-    };
+    let level = |id: &str| Level::new(id, 0.0);
     Model::builder()
         .levels(vec![level("a"), level("b")])
         .initial(vec![1.0, 0.0])

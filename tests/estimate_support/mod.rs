@@ -63,15 +63,7 @@ impl Builder {
 
     /// A level with energy E/hbar = omega (rad/s).
     pub fn level(mut self, id: &str, omega: f64) -> Self {
-        self.levels.push(Level {
-            id: id.into(),
-            label: None,
-            omega,
-            gamma: 0.0,
-            tolerance: None,
-            decays_to: Vec::new(),
-            dephasing: 0.0,
-        });
+        self.levels.push(Level::new(id, omega));
         self.initial.push(0.0);
         self
     }

@@ -51,13 +51,8 @@ impl Builder {
     /// A level with energy omega (rad/s) and decay rate gamma (1/s).
     pub fn level(mut self, id: &str, omega: f64, gamma: f64) -> Self {
         self.levels.push(Level {
-            id: id.into(),
-            label: None,
-            omega,
             gamma,
-            tolerance: None,
-            decays_to: Vec::new(),
-            dephasing: 0.0,
+            ..Level::new(id, omega)
         });
         self.initial.push(0.0);
         self

@@ -135,15 +135,7 @@ fn level(
     lvl: Option<&super::super::raw::RawLevel>,
     path: &KeyPath,
 ) -> (Level, bool) {
-    let mut level = Level {
-        id: id.to_string(),
-        label: None,
-        omega: 0.0,
-        gamma: 0.0,
-        tolerance: None,
-        decays_to: Vec::new(),
-        dephasing: 0.0,
-    };
+    let mut level = Level::new(id, 0.0);
     let mut ok = false;
     let Some(l) = lvl else {
         ctx.missing(&path.k("energy"), Kind::Energy.expected());
