@@ -39,6 +39,8 @@ pub enum Error {
     NonFinite { stage: String },
     #[error("norm error {norm_error:.3e} exceeds the limit {limit:.1e}: the propagation cannot be trusted; tighten solver.rtol/atol")]
     NormError { norm_error: f64, limit: f64 },
+    #[error("the density matrix lost positivity by {defect:.3e} (limit {limit:.1e}): the propagation cannot be trusted; tighten solver.rtol/atol")]
+    PositivityError { defect: f64, limit: f64 },
     #[error("could not read {path}: {source}")]
     Input {
         path: PathBuf,

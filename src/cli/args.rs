@@ -2,8 +2,9 @@
 //! several subcommands share defined once (their help with them).
 //!
 //! Owns: flag names, one-line help, defaults. Must not: check values beyond
-//! their type (the library refuses bad values with its own messages) or run
-//! anything.
+//! their type (the library refuses bad values with its own messages; a
+//! count that must be positive, `--step-budget`, is typed so by its parser)
+//! or run anything.
 
 use super::help;
 use clap::{Args, Parser, Subcommand, ValueEnum};
@@ -129,6 +130,23 @@ pub struct JobsArg {
     pub jobs: Option<usize>,
 }
 
+/// The step budget of every propagation a command runs.
+#[derive(Debug, Args)]
+pub struct StepBudgetArg {
+    /// Most steps (adaptive: accepted and rejected; exact: segments and peak sub-steps) one
+    /// propagation may take (a whole number >= 1); a run that needs more stops with exit
+    /// status 1, except that the exact propagator samples peak populations more coarsely
+    /// instead (final populations stay exact). Raise it for a long window with a fast time
+    /// scale.
+    #[arg(
+        long,
+        value_name = "N",
+        default_value_t = levelplan::solve::DEFAULT_STEP_BUDGET,
+        value_parser = clap::value_parser!(u64).range(1..)
+    )]
+    pub step_budget: u64,
+}
+
 /// Logarithmic population axis of a 1-D scan plot.
 #[derive(Debug, Args)]
 pub struct LogYArg {
@@ -157,6 +175,8 @@ pub struct VetArgs {
     #[arg(long, value_name = "POPULATION")]
     pub goal: Option<f64>,
     #[command(flatten)]
+    pub step_budget: StepBudgetArg,
+    #[command(flatten)]
     pub output: ReportOutput,
 }
 
@@ -180,6 +200,8 @@ pub struct EvolveArgs {
     /// populations).
     #[arg(long)]
     pub log: bool,
+    #[command(flatten)]
+    pub step_budget: StepBudgetArg,
 }
 
 #[derive(Debug, Args)]
@@ -211,6 +233,8 @@ pub struct ScanArgs {
     pub log_y: LogYArg,
     #[command(flatten)]
     pub jobs: JobsArg,
+    #[command(flatten)]
+    pub step_budget: StepBudgetArg,
     /// Compute only the K-th of N contiguous parts of the grid (K from 1 to N, e.g. a
     /// Slurm array task id); join the parts with `levelplan merge`.
     #[arg(long, value_name = "K/N")]
@@ -263,6 +287,8 @@ pub struct TuneArgs {
     pub log: bool,
     #[command(flatten)]
     pub jobs: JobsArg,
+    #[command(flatten)]
+    pub step_budget: StepBudgetArg,
 }
 
 #[derive(Debug, Args)]

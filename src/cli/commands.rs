@@ -28,7 +28,8 @@ pub fn inspect(a: InspectArgs) -> Result<i32, Error> {
 pub fn vet(a: VetArgs) -> Result<i32, Error> {
     let opts = VetOptions::default()
         .with_tolerance(a.tolerance.tolerance)
-        .with_goal(a.goal);
+        .with_goal(a.goal)
+        .with_step_budget(a.step_budget.step_budget);
     pipeline::check_tolerance(opts.tolerance)?;
     pipeline::check_population("--goal", opts.goal)?;
     let (model, prov) = load(&a.scheme.scheme)?;
@@ -45,7 +46,7 @@ pub fn evolve(a: EvolveArgs) -> Result<i32, Error> {
     pipeline::evolve::check_samples(a.samples, 0, false)?;
     let (model, prov) = load(&a.scheme.scheme)?;
     pipeline::evolve::check_samples(a.samples, model.levels().len(), a.plot.is_some())?;
-    let evo = pipeline::evolve(&model, a.samples)?;
+    let evo = pipeline::evolve_with_budget(&model, a.samples, a.step_budget.step_budget)?;
     let ids: Vec<String> = model.levels().iter().map(|l| l.id.clone()).collect();
     let csv = evolve_fmt::csv(&prov, &ids, &evo);
     if let Some(path) = &a.plot {
@@ -79,7 +80,8 @@ pub fn tune(a: TuneArgs) -> Result<i32, Error> {
     };
     req.check()?;
     let pool = scan::thread_pool(a.jobs.jobs)?;
-    let study = super::scan::read_study(&a.scheme.scheme)?;
+    let study =
+        super::scan::read_study(&a.scheme.scheme)?.with_step_budget(a.step_budget.step_budget);
     let report = study::tune(&study, &req, &pool)?;
     Sink::Stdout { color: false }.emit(scan_fmt::tune_text(&report).as_bytes())?;
     Ok(if report.found.is_some() {

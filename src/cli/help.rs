@@ -28,7 +28,8 @@ docs/cookbook.md in the source repository.
 
 Exit status: 0 every spectator within tolerance (or the command succeeded), \
 3 at least one spectator above its tolerance or, with --goal, a target below the goal (vet), 2 bad input (scheme file or option), \
-1 a run that could not vouch for its result (step budget, norm error, non-finite value) or could not write its output.",
+1 a run that could not vouch for its result (step budget, norm error, non-finite value) or could not write its output.
+The step budget (default 5000000 steps per propagation) is raised with --step-budget N.",
         true,
     )
 }
@@ -61,9 +62,10 @@ For every level: final and peak population (exact propagation), the perturbative
 spectator above its tolerance; est?: estimate above 0.1 or off the exact value by more than a factor 2).
 Each leak lists the drives that feed it (field, source level, detuning and Rabi frequency, cyclic, in Hz with
 SI prefixes) and a remedy (same pulse area with a Gaussian or Blackman envelope of the same intensity FWHM, or the
-pulse length that brings the estimate below tolerance), each checked by exact propagation. Drives beyond the
-detuning cutoff are listed with their estimate and light shift Omega^2/(4 Delta) (cyclic). Populations below
-1e-3 are printed in scientific notation. Every output records the tool version, the scheme file and the
+pulse length that brings the estimate below tolerance), each checked by exact propagation; a check that
+cannot be run (step budget, say) is shown as 'not checked' with the reason and does not change the exit
+status. Drives beyond the detuning cutoff are listed with their estimate and light shift Omega^2/(4 Delta)
+(cyclic). Populations below 1e-3 are printed in scientific notation. Every output records the tool version, the scheme file and the
 SHA-256 of its bytes, the solver method and tolerances.
 
 Exit status: 0 every spectator within tolerance, 3 at least one above or (with --goal) a target

@@ -162,7 +162,7 @@ pub fn scan(a: ScanArgs) -> Result<i32, Error> {
     if let Some(out) = &a.out {
         partial_path(out)?;
     }
-    let s = read_study(&a.scheme.scheme)?;
+    let s = read_study(&a.scheme.scheme)?.with_step_budget(a.step_budget.step_budget);
     let axes = s.axes(&specs, a.log, 1)?;
     let grid = Grid::new(axes, a.force)?;
     let model = s.preflight(&grid)?;

@@ -31,7 +31,13 @@
 //!   order: `c_k = (-i)^2 sum_m integral dt V_km(t) integral^t dt' V_mn(t') c_n(0)`,
 //!   marched in one pass (see `nested`).
 //!
-//! No decay weights are applied (the contract's `first_order_population`).
+//! * decay-fed: population pumped by spontaneous emission out of a level a
+//!   drive excites, from the weak-drive scattering rate (see `rates`),
+//!   added incoherently to the level's estimate and listed as
+//!   [`DecaySource`]s.
+//!
+//! No decay weights are applied to the amplitudes (the contract's
+//! `first_order_population`).
 //! Every drive counts, including those the detuning cutoff leaves out of the
 //! dynamics; those are also listed in [`Estimate::excluded`].
 //!
@@ -51,6 +57,7 @@
 //! rectangles a few microseconds, with Gaussians 0.2-0.8 ms.
 
 mod nested;
+mod rates;
 mod remedy;
 mod spectrum;
 mod view;
@@ -58,6 +65,9 @@ mod view;
 use num_complex::Complex64 as C;
 
 use crate::model::{Model, Window};
+pub use rates::{
+    scattering_rate, DecaySource, DEPLETION_LIMIT, MIN_WIDTH_TIMES_LENGTH, SATURATION_LIMIT,
+};
 pub use remedy::{intensity_fwhm, remedy, LengthRule};
 pub use spectrum::{envelope_spectrum, envelope_spectrum_bound, envelope_spectrum_quadrature};
 use view::FieldView;
@@ -106,6 +116,17 @@ pub struct LevelEstimate {
     pub second_order: Option<f64>,
     /// Contributions, largest first.
     pub sources: Vec<Source>,
+    /// Population arriving by spontaneous emission from a level a drive
+    /// excites (the rate estimate of `rates`), largest first. Their sum is
+    /// included in the estimate at the level's order (see [`estimate`]).
+    pub decay_sources: Vec<DecaySource>,
+}
+
+impl LevelEstimate {
+    /// Whether every decay-fed part is within the rate estimate's limits.
+    pub fn decay_reliable(&self) -> bool {
+        self.decay_sources.iter().all(|d| d.reliable)
+    }
 }
 
 impl LevelEstimate {
@@ -391,6 +412,7 @@ pub(crate) fn level_estimate(ctx: &Ctx<'_>, k: usize) -> Result<(LevelEstimate, 
             first_order: None,
             second_order: None,
             sources: vec![],
+            decay_sources: vec![],
         };
         return Ok((le, zero));
     }
@@ -423,6 +445,7 @@ pub(crate) fn level_estimate(ctx: &Ctx<'_>, k: usize) -> Result<(LevelEstimate, 
             first_order: Some(p),
             second_order: None,
             sources,
+            decay_sources: vec![],
         };
         return Ok((le, total));
     }
@@ -437,6 +460,7 @@ pub(crate) fn level_estimate(ctx: &Ctx<'_>, k: usize) -> Result<(LevelEstimate, 
                 first_order: Some(0.0),
                 second_order: Some(p),
                 sources,
+                decay_sources: vec![],
             };
             Ok((le, total))
         }
@@ -446,20 +470,35 @@ pub(crate) fn level_estimate(ctx: &Ctx<'_>, k: usize) -> Result<(LevelEstimate, 
                 first_order: Some(0.0),
                 second_order: None,
                 sources: vec![],
+                decay_sources: vec![],
             };
             Ok((le, zero))
         }
     }
 }
 
-/// First- and second-order estimate of every level, and the drives the
-/// detuning cutoff leaves out with their first-order population and light
-/// shift. Fails (never returns NaN) when a number is not finite.
+/// First- and second-order estimate of every level, the decay-fed
+/// populations (the rate estimate of `rates`), and the drives the detuning
+/// cutoff leaves out with their first-order population and light shift.
+/// Fails (never returns NaN) when a number is not finite.
+///
+/// A level fed by decay gets the sum of its decay sources added to its
+/// estimate at its own order, incoherently: to `first_order` (a level no
+/// drive reaches becomes [`Order::First`]), or to `second_order` for a
+/// level reached by drives only at second order. Remedies
+/// ([`remedy`]) reshape the drives' coherent part only.
 pub fn estimate(model: &Model) -> Result<Estimate, EstimateError> {
     let ctx = Ctx::new(model, Some(model.window));
-    let levels = (0..model.levels.len())
+    let mut levels = (0..model.levels.len())
         .map(|k| level_estimate(&ctx, k).map(|(le, _)| le))
         .collect::<Result<Vec<_>, _>>()?;
+    for (k, source) in rates::decay_sources(&ctx)? {
+        add_decay_source(&mut levels[k], source);
+    }
+    for le in &mut levels {
+        le.decay_sources
+            .sort_by(|a, b| b.population.total_cmp(&a.population));
+    }
     let mut excluded = Vec::new();
     for (i, d) in model.drives.iter().enumerate() {
         if model.drive_included(d) {
@@ -468,6 +507,21 @@ pub fn estimate(model: &Model) -> Result<Estimate, EstimateError> {
         excluded.push(excluded_drive(&ctx, i)?);
     }
     Ok(Estimate { levels, excluded })
+}
+
+/// Adds a decay-fed part to a level's estimate at its order.
+fn add_decay_source(le: &mut LevelEstimate, source: DecaySource) {
+    let p = source.population;
+    match le.order {
+        Order::Initial => return,
+        Order::Unreached => {
+            le.order = Order::First;
+            le.first_order = Some(p);
+        }
+        Order::First => le.first_order = Some(le.first_order.unwrap_or(0.0) + p),
+        Order::Second => le.second_order = Some(le.second_order.unwrap_or(0.0) + p),
+    }
+    le.decay_sources.push(source);
 }
 
 fn excluded_drive(ctx: &Ctx<'_>, i: usize) -> Result<ExcludedDrive, EstimateError> {

@@ -3,12 +3,11 @@
 //! Owns: [`ModelBuilder`], [`ModelError`] and the invariants every model
 //! keeps (finite numbers, indices in range, couplings ordered by energy,
 //! populations summing to 1, targets not initially populated, one drive per
-//! field and level pair, envelopes with a duration, a window that ends
-//! after it starts, positive finite solver tolerances). These are the only
-//! consistency checks of a model: the Hamiltonian assembly, the propagators
-//! and the estimator rely on them and check only the numbers they compute. Scheme validation ends here too: it reports the
-//! problems of a file with their place in it first, then hands the parts to
-//! this builder, so a model passes these checks whichever way it was made.
+//! field and level pair, envelopes with a duration, a window that ends after
+//! it starts, positive finite solver tolerances; the open-system parts in
+//! `open.rs`): the only consistency checks of a model, which later stages
+//! rely on. Scheme validation reports a file's problems with their place
+//! first, then hands the parts here.
 //!
 //! Must not: know of strings with units, of the scheme format's limits
 //! (level and drive counts, time magnitudes: those are the file format's),
@@ -16,7 +15,10 @@
 
 use std::collections::HashSet;
 
-use super::{Coupling, Drive, Field, Level, Model, SolverSettings, Window, DEFAULT_TOLERANCE};
+use super::{
+    Coupling, Drive, Field, InitialKind, Level, Model, Readout, SolverSettings, Window,
+    DEFAULT_TOLERANCE,
+};
 
 /// Largest miss of 1 that the initial populations may sum to.
 pub const POPULATION_SUM_TOLERANCE: f64 = 1e-9;
@@ -35,6 +37,10 @@ pub enum Part {
     Tolerance,
     Window,
     Solver,
+    /// The readout time.
+    Readout,
+    /// The linewidth of a field.
+    Linewidth(usize),
 }
 
 impl std::fmt::Display for Part {
@@ -50,6 +56,8 @@ impl std::fmt::Display for Part {
             Part::Tolerance => write!(f, "the tolerance"),
             Part::Window => write!(f, "the window"),
             Part::Solver => write!(f, "the solver settings"),
+            Part::Readout => write!(f, "the readout"),
+            Part::Linewidth(i) => write!(f, "the linewidth of field {i}"),
         }
     }
 }
@@ -76,6 +84,8 @@ pub struct ModelBuilder {
     fields: Vec<Field>,
     drives: Vec<Drive>,
     initial: Option<Vec<f64>>,
+    initial_kind: InitialKind,
+    readout: Readout,
     targets: Vec<usize>,
     tolerance: Option<f64>,
     window: Option<Window>,
@@ -98,6 +108,8 @@ impl Model {
             fields: self.fields.clone(),
             drives: self.drives.clone(),
             initial: Some(self.initial.clone()),
+            initial_kind: self.initial_kind,
+            readout: self.readout,
             targets: self.targets.clone(),
             tolerance: Some(self.tolerance),
             window: Some(self.window),
@@ -153,6 +165,16 @@ impl ModelBuilder {
         self.initial = Some(populations);
         self
     }
+    /// How the initial populations combine (default: coherently).
+    pub fn initial_kind(mut self, kind: InitialKind) -> Self {
+        self.initial_kind = kind;
+        self
+    }
+    /// When final populations are judged (default: window end).
+    pub fn readout(mut self, readout: Readout) -> Self {
+        self.readout = readout;
+        self
+    }
     /// Indices of the target levels.
     pub fn targets(mut self, targets: Vec<usize>) -> Self {
         self.targets = targets;
@@ -199,6 +221,8 @@ impl ModelBuilder {
             fields: self.fields,
             drives: self.drives,
             initial: self.initial.unwrap_or_else(|| vec![0.0; n]),
+            initial_kind: self.initial_kind,
+            readout: self.readout,
             targets: self.targets,
             tolerance: self.tolerance.unwrap_or(DEFAULT_TOLERANCE),
             window,
@@ -207,6 +231,9 @@ impl ModelBuilder {
         let mut problems = non_finite(&model);
         if problems.is_empty() {
             invariants(&model, &mut problems);
+        }
+        if problems.is_empty() {
+            super::open::check(&model, &mut problems);
         }
         if problems.is_empty() {
             Ok(model)
@@ -223,7 +250,7 @@ fn non_finite(m: &Model) -> Vec<ModelError> {
     let mut out = Vec::new();
     let mut bad = |at| out.push(ModelError::NonFinite { at });
     for (i, l) in m.levels.iter().enumerate() {
-        if !(l.omega.is_finite() && l.gamma.is_finite()) {
+        if !(l.omega.is_finite() && l.gamma.is_finite() && l.dephasing.is_finite()) {
             bad(Part::Level(i));
         }
     }
@@ -414,13 +441,7 @@ mod tests {
     use crate::model::{Dipole, Envelope};
 
     fn two_level() -> ModelBuilder {
-        let level = |id: &str, omega| Level {
-            id: id.into(),
-            label: None,
-            omega,
-            gamma: 0.0,
-            tolerance: None,
-        };
+        let level = |id: &str, omega| Level::new(id, omega);
         Model::builder()
             .level(level("g", 0.0))
             .level(level("e", 1e9))
@@ -440,6 +461,7 @@ mod tests {
                 phase: 0.0,
                 rwa: true,
                 peak_intensity: None,
+                linewidth: 0.0,
             })
             .drive(Drive {
                 field: 0,

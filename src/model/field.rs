@@ -26,6 +26,11 @@ pub struct Field {
     /// Peak intensity I = c eps0 E0^2 / 2 (W/m^2), when it is known (set from
     /// intensity or power, or from a Rabi frequency on an absolute dipole).
     pub peak_intensity: Option<f64>,
+    /// FWHM of the laser's Lorentzian line as an angular frequency
+    /// (2 pi x FWHM in Hz; 0 for a line narrow enough to ignore). Enters the
+    /// density-matrix equation through the phase-diffusion model
+    /// ([`crate::model::PhaseNumbers`]).
+    pub linewidth: f64,
 }
 
 impl Field {

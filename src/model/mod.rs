@@ -17,6 +17,7 @@
 mod builder;
 pub mod envelope;
 mod field;
+pub mod open;
 
 pub use builder::{ModelBuilder, ModelError, Part, POPULATION_SUM_TOLERANCE};
 pub use envelope::{
@@ -49,8 +50,12 @@ pub struct Model {
     /// the detuning cutoff.
     pub(crate) drives: Vec<Drive>,
     /// Initial population of each level (same length as `levels`, sums to 1).
-    /// Initial amplitudes are `sqrt(p)` with phase 0.
     pub(crate) initial: Vec<f64>,
+    /// How the initial populations combine: coherently (amplitudes
+    /// `sqrt(p)` with phase 0, the v1 meaning) or as a mixture.
+    pub(crate) initial_kind: InitialKind,
+    /// When final populations, flags and targets are judged.
+    pub(crate) readout: Readout,
     /// Indices of target levels.
     pub(crate) targets: Vec<usize>,
     /// Default spectator tolerance (population).
@@ -72,6 +77,33 @@ pub struct Level {
     pub gamma: f64,
     /// Per-level leakage tolerance (population), overriding the default.
     pub tolerance: Option<f64>,
+    /// Spontaneous-emission branching: (lower level, fraction of `gamma`).
+    /// Fractions lie in (0, 1] and sum to at most 1; the remainder leaves
+    /// the scheme ("lost"). Empty: all of the decay is lost (v1).
+    pub decays_to: Vec<(usize, f64)>,
+    /// Pure dephasing rate gamma (1/s): coherences rho_jk with j or k this
+    /// level decay at gamma_j + gamma_k (jump operator sqrt(2 gamma)|k><k|).
+    pub dephasing: f64,
+}
+
+impl Level {
+    /// A stable level with no label, tolerance, decay or dephasing.
+    pub fn new(id: impl Into<String>, omega: f64) -> Level {
+        Level {
+            id: id.into(),
+            label: None,
+            omega,
+            gamma: 0.0,
+            tolerance: None,
+            decays_to: Vec::new(),
+            dephasing: 0.0,
+        }
+    }
+
+    /// Fraction of the decay that leaves the scheme (1 - sum of branches).
+    pub fn lost_fraction(&self) -> f64 {
+        (1.0 - self.decays_to.iter().map(|d| d.1).sum::<f64>()).max(0.0)
+    }
 }
 
 /// Strength of a coupling's dipole.
@@ -126,6 +158,44 @@ impl Window {
     }
 }
 
+/// How the initial populations of several levels combine.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+pub enum InitialKind {
+    /// One level, or the v1 map of populations: a coherent superposition,
+    /// amplitudes sqrt(p) with phase 0.
+    #[default]
+    Coherent,
+    /// The same superposition, written explicitly (`superposition:`).
+    Superposition,
+    /// An incoherent mixture: a diagonal density matrix (`mixture:`).
+    Mixture,
+}
+
+/// When final populations, flags, targets and goals are judged.
+#[derive(Debug, Clone, Copy, PartialEq, Default)]
+pub enum Readout {
+    /// At the window end (v1).
+    #[default]
+    WindowEnd,
+    /// After the window, drives off, once every decay has run its course.
+    Settled,
+    /// At an absolute time (s) inside the window, ends included.
+    At(f64),
+}
+
+/// Which equation of motion runs.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+pub enum Dynamics {
+    /// Amplitudes unless the scheme has an open-system key (decay
+    /// branching, dephasing, a laser linewidth, a mixture).
+    #[default]
+    Auto,
+    /// The Schrodinger equation for amplitudes (decay only as loss).
+    Amplitudes,
+    /// The Lindblad master equation for the density matrix.
+    DensityMatrix,
+}
+
 /// Which propagator to use.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum Method {
@@ -141,6 +211,8 @@ pub struct SolverSettings {
     pub rtol: f64,
     pub atol: f64,
     pub method: Method,
+    /// Which equation of motion runs.
+    pub dynamics: Dynamics,
     /// Drives with |detuning| above this (rad/s) are left out of the dynamics.
     pub detuning_cutoff: f64,
 }
@@ -160,6 +232,7 @@ impl Default for SolverSettings {
             rtol: DEFAULT_RTOL,
             atol: DEFAULT_ATOL,
             method: Method::Auto,
+            dynamics: Dynamics::Auto,
             detuning_cutoff: DEFAULT_DETUNING_CUTOFF,
         }
     }
@@ -190,6 +263,32 @@ impl Model {
     /// Initial population of each level (one per level, summing to 1).
     pub fn initial(&self) -> &[f64] {
         &self.initial
+    }
+    /// How the initial populations combine (coherent or a mixture).
+    pub fn initial_kind(&self) -> InitialKind {
+        self.initial_kind
+    }
+    /// When final populations are judged.
+    pub fn readout(&self) -> Readout {
+        self.readout
+    }
+    /// Whether the scheme uses an open-system key: decay branching,
+    /// dephasing, a laser linewidth or a mixture.
+    pub fn has_open_keys(&self) -> bool {
+        self.initial_kind == InitialKind::Mixture
+            || self
+                .levels
+                .iter()
+                .any(|l| !l.decays_to.is_empty() || l.dephasing > 0.0)
+            || self.fields.iter().any(|f| f.linewidth > 0.0)
+    }
+    /// The equation that runs: `solver.dynamics`, with `auto` resolved.
+    pub fn dynamics(&self) -> Dynamics {
+        match self.solver.dynamics {
+            Dynamics::Auto if self.has_open_keys() => Dynamics::DensityMatrix,
+            Dynamics::Auto => Dynamics::Amplitudes,
+            d => d,
+        }
     }
     /// Indices of target levels.
     pub fn targets(&self) -> &[usize] {

@@ -7,7 +7,7 @@
 use super::check_solution;
 use crate::error::Error;
 use crate::model::Model;
-use crate::solve::{self, MethodUsed, SolveOptions};
+use crate::solve::{self, MethodUsed, SolveOptions, DEFAULT_STEP_BUDGET};
 
 /// Largest number of samples `evolve` accepts.
 pub const MAX_SAMPLES: usize = 1_000_000;
@@ -75,6 +75,15 @@ pub fn check_samples(samples: usize, n_levels: usize, plot: bool) -> Result<(), 
 /// Propagate the model and record `samples` evenly spaced samples of the
 /// populations over its window, both ends included.
 pub fn evolve(model: &Model, samples: usize) -> Result<Evolution, Error> {
+    evolve_with_budget(model, samples, DEFAULT_STEP_BUDGET)
+}
+
+/// [`evolve`] with this step budget ([`SolveOptions::step_budget`]).
+pub fn evolve_with_budget(
+    model: &Model,
+    samples: usize,
+    step_budget: u64,
+) -> Result<Evolution, Error> {
     check_samples(samples, model.levels.len(), false)?;
     let sol = solve::solve(
         model,
@@ -82,7 +91,7 @@ pub fn evolve(model: &Model, samples: usize) -> Result<Evolution, Error> {
             samples,
             // The samples are what is shown; peaks between them are not.
             peaks: false,
-            ..SolveOptions::default()
+            step_budget,
         },
     )?;
     check_solution(&sol)?;

@@ -12,16 +12,19 @@ pub mod evolve;
 mod remedies;
 pub mod study;
 
-pub use evolve::{evolve, Evolution, MAX_EVOLVE_VALUES, MAX_PLOT_POINTS, MAX_SAMPLES};
+pub use evolve::{
+    evolve, evolve_with_budget, Evolution, MAX_EVOLVE_VALUES, MAX_PLOT_POINTS, MAX_SAMPLES,
+};
 
 use crate::error::Error;
 use crate::estimate;
 use crate::model::Model;
 use crate::report::{self, InspectReport, Provenance, VetReport};
-use crate::solve::{self, Solution, SolveOptions};
+use crate::solve::{self, Solution, SolveOptions, DEFAULT_STEP_BUDGET};
 
-/// Largest accepted norm error |1 - sum P - lost| of a propagation; above it
-/// a run fails instead of reporting.
+/// Largest accepted norm error |1 - sum P - lost| of a propagation, and
+/// positivity defect of a density matrix; above it a run fails instead of
+/// reporting.
 pub const NORM_ERROR_LIMIT: f64 = 1e-6;
 
 /// Check a propagation before anything is reported from it.
@@ -40,6 +43,12 @@ pub fn check_solution(sol: &Solution) -> Result<(), Error> {
     if sol.norm_error > NORM_ERROR_LIMIT {
         return Err(Error::NormError {
             norm_error: sol.norm_error,
+            limit: NORM_ERROR_LIMIT,
+        });
+    }
+    if sol.positivity_error > NORM_ERROR_LIMIT {
+        return Err(Error::PositivityError {
+            defect: sol.positivity_error,
             limit: NORM_ERROR_LIMIT,
         });
     }
@@ -73,6 +82,9 @@ pub struct VetOptions {
     pub goal: Option<f64>,
     /// Check each remedy by exact propagation of the changed scheme.
     pub check_remedies: bool,
+    /// Step budget of every propagation (the main run and each remedy
+    /// check), [`SolveOptions::step_budget`].
+    pub step_budget: u64,
 }
 
 impl Default for VetOptions {
@@ -81,6 +93,7 @@ impl Default for VetOptions {
             tolerance: None,
             goal: None,
             check_remedies: true,
+            step_budget: DEFAULT_STEP_BUDGET,
         }
     }
 }
@@ -103,6 +116,12 @@ impl VetOptions {
         self.check_remedies = check;
         self
     }
+
+    /// The step budget of every propagation of the run.
+    pub fn with_step_budget(mut self, step_budget: u64) -> Self {
+        self.step_budget = step_budget;
+        self
+    }
 }
 
 /// `inspect`: the dry run, nothing propagated.
@@ -117,22 +136,25 @@ pub fn vet_model(
     prov: Provenance,
     tolerance: Option<f64>,
 ) -> Result<VetReport, Error> {
-    vet_model_with(model, prov, tolerance, true)
+    vet_model_with(model, prov, tolerance, true, DEFAULT_STEP_BUDGET)
 }
 
 /// [`vet_model`] with or without peak tracking: the points of a scan and of
 /// `tune` show no peaks, so they skip that work (each level's peak
-/// population is then its final one).
+/// population is then its final one). `step_budget`:
+/// [`SolveOptions::step_budget`].
 pub(crate) fn vet_model_with(
     model: &Model,
     prov: Provenance,
     tolerance: Option<f64>,
     peaks: bool,
+    step_budget: u64,
 ) -> Result<VetReport, Error> {
     let sol = solve::solve(
         model,
         &SolveOptions {
             peaks,
+            step_budget,
             ..SolveOptions::default()
         },
     )?;
@@ -148,12 +170,14 @@ pub(crate) fn vet_model_with(
 /// `vet`: the main job. The exact propagation beside the estimate, every
 /// remedy checked exactly (unless switched off), targets judged against
 /// the goal. The report's `flagged` and `targets_short` give the verdict.
+/// A remedy whose check fails is reported as not checked (with the reason)
+/// and does not fail the run: only the main propagation can.
 pub fn vet(model: &Model, prov: Provenance, opts: &VetOptions) -> Result<VetReport, Error> {
     check_tolerance(opts.tolerance)?;
     check_population("--goal", opts.goal)?;
-    let mut rep = vet_model(model, prov, opts.tolerance)?;
+    let mut rep = vet_model_with(model, prov, opts.tolerance, true, opts.step_budget)?;
     if opts.check_remedies {
-        remedies::check(model, &mut rep)?;
+        remedies::check(model, &mut rep, opts.step_budget);
     }
     if let Some(g) = opts.goal {
         report::judge_targets(&mut rep, g);
@@ -165,7 +189,7 @@ pub fn vet(model: &Model, prov: Provenance, opts: &VetOptions) -> Result<VetRepo
 }
 
 /// The exit status a vet report asks for: 0 within tolerance, 3 a leak or a
-/// target short of its goal.
+/// target short of its goal. Remedies not checked do not change it.
 pub fn vet_status(rep: &VetReport) -> i32 {
     if rep.flagged > 0 || rep.targets_short > 0 {
         crate::error::EXIT_TOLERANCE

@@ -24,6 +24,8 @@ pub struct Study {
     source: SchemeSource,
     /// The scheme parsed once for every grid point (built on first use).
     prepared: std::sync::OnceLock<scheme::Prepared>,
+    /// Step budget of every point's propagation.
+    step_budget: u64,
 }
 
 impl Study {
@@ -33,7 +35,15 @@ impl Study {
             text,
             source,
             prepared: std::sync::OnceLock::new(),
+            step_budget: crate::solve::DEFAULT_STEP_BUDGET,
         }
+    }
+
+    /// The same study with this step budget for every point's propagation
+    /// ([`SolveOptions::step_budget`](crate::solve::SolveOptions::step_budget)).
+    pub fn with_step_budget(mut self, step_budget: u64) -> Study {
+        self.step_budget = step_budget;
+        self
     }
 
     /// The scheme text.
@@ -113,7 +123,13 @@ impl Study {
     ) -> Result<VetReport, Error> {
         let run = || -> Result<VetReport, Error> {
             let model = self.model_at(grid, coords)?;
-            let rep = vet_model_with(&model, self.provenance(), tolerance, false)?;
+            let rep = vet_model_with(
+                &model,
+                self.provenance(),
+                tolerance,
+                false,
+                self.step_budget,
+            )?;
             if rep.levels.len() != n_levels {
                 return Err(bad(
                     "--vary",

@@ -53,6 +53,9 @@ mod tests {
                 "provenance",
                 "title",
                 "laser_safety",
+                "readout",
+                "dynamics",
+                "initial_state",
             ]
         );
         assert_eq!(v["window_s"], serde_json::json!([0.0, 2e-7]));
@@ -131,6 +134,22 @@ mod tests {
             ]
         );
         assert_eq!(s["remedy"]["exact_blackman_population"], Value::Null);
+    }
+
+    #[test]
+    fn a_remedy_not_checked_adds_one_key_after_the_others() {
+        let (_, v) = json(&sample::vet_report_with_unchecked_remedy());
+        let remedy = &v["levels"][2]["remedy"];
+        let k = keys(remedy);
+        assert_eq!(k.len(), 11);
+        assert_eq!(&k[9..], ["exact_population_at_length", "not_checked"]);
+        assert_eq!(
+            remedy["not_checked"],
+            serde_json::json!([{
+                "check": "blackman",
+                "reason": "the run needs more than 10 steps; raise SolveOptions::step_budget"
+            }])
+        );
     }
 
     #[test]

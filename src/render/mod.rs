@@ -126,4 +126,37 @@ mod tests {
             }
         }
     }
+
+    #[test]
+    fn a_remedy_not_checked_is_shown_with_its_reason() {
+        let r = sample::vet_report_with_unchecked_remedy();
+        let render = |format| {
+            let mut b = Vec::new();
+            exporter(format, false).vet(&r, &mut b).unwrap();
+            String::from_utf8(b).unwrap()
+        };
+        let text = render(Format::Text);
+        assert!(
+            text.contains(
+                "a blackman envelope 2.00e-10 (not checked: the run needs more than 10 steps; \
+                 raise SolveOptions::step_budget); a rectangular pulse"
+            ),
+            "{text}"
+        );
+        assert!(text.contains("(exact 1.10e-9)"), "the other checks stay");
+        assert!(render(Format::Markdown).contains(
+            "(not checked: the run needs more than 10 steps; raise SolveOptions::step_budget)"
+        ));
+        assert!(render(Format::Latex).contains(
+            "(not checked: the run needs more than 10 steps; raise SolveOptions::step\\_budget)"
+        ));
+        let plain = {
+            let mut b = Vec::new();
+            exporter(Format::Text, false)
+                .vet(&sample::vet_report(), &mut b)
+                .unwrap();
+            String::from_utf8(b).unwrap()
+        };
+        assert!(!plain.contains("not checked"), "only where a check failed");
+    }
 }

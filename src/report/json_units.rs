@@ -10,6 +10,7 @@
 //! output keeps every bit (tests/cli/json_golden.rs).
 
 use crate::estimate::Order;
+use crate::model::{Dynamics, InitialKind, Readout};
 use crate::solve::MethodUsed;
 use serde::{Serialize, Serializer};
 
@@ -68,6 +69,33 @@ pub(super) fn method<S: Serializer>(m: &MethodUsed, s: S) -> Result<S::Ok, S::Er
     s.serialize_str(match m {
         MethodUsed::Exact => "exact",
         MethodUsed::Adaptive => "adaptive",
+    })
+}
+
+/// The equation that ran: `amplitudes` or `density_matrix`.
+pub(super) fn dynamics<S: Serializer>(d: &Dynamics, s: S) -> Result<S::Ok, S::Error> {
+    s.serialize_str(match d {
+        Dynamics::DensityMatrix => "density_matrix",
+        Dynamics::Amplitudes | Dynamics::Auto => "amplitudes",
+    })
+}
+
+/// The readout: `window_end`, `settled`, or the time in seconds.
+pub(super) fn readout<S: Serializer>(r: &Readout, s: S) -> Result<S::Ok, S::Error> {
+    match r {
+        Readout::WindowEnd => s.serialize_str("window_end"),
+        Readout::Settled => s.serialize_str("settled"),
+        Readout::At(t) => s.serialize_f64(*t),
+    }
+}
+
+/// How the initial populations combine: `coherent` (one level or the v1
+/// map), `superposition` (written so), `mixture`.
+pub(super) fn initial_kind<S: Serializer>(k: &InitialKind, s: S) -> Result<S::Ok, S::Error> {
+    s.serialize_str(match k {
+        InitialKind::Coherent => "coherent",
+        InitialKind::Superposition => "superposition",
+        InitialKind::Mixture => "mixture",
     })
 }
 

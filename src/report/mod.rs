@@ -27,8 +27,8 @@ pub use inspect::{inspect, InspectDrive, InspectField, InspectLevel, InspectRepo
 pub use provenance::{Provenance, SolverFacts};
 pub use safety::{safety_notes, SafetyNote, SAFETY_INTENSITY};
 pub use vet::{
-    judge_targets, vet, ExcludedRow, LevelRow, RemedyRow, SourceRow, VetReport, NEGLIGIBLE,
-    UNRELIABLE_ABOVE, UNRELIABLE_FACTOR,
+    judge_targets, vet, Channel, ExcludedRow, LevelRow, RemedyCheck, RemedyRow, SourceRow,
+    UncheckedRemedy, VetReport, NEGLIGIBLE, UNRELIABLE_ABOVE, UNRELIABLE_FACTOR,
 };
 
 use crate::model::Model;

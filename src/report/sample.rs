@@ -23,6 +23,9 @@ fn source(field: &str, from: &str, detuning_mhz: f64, order: Order, population: 
         population,
         order,
         included: true,
+        channel: Channel::Drive,
+        via: None,
+        saturation: None,
     }
 }
 
@@ -45,6 +48,10 @@ pub(crate) fn vet_report() -> VetReport {
         tolerance: 1e-3,
         unreliable: false,
         remedy: None,
+        settled_population: None,
+        window_end_population: None,
+        scattered_photons: None,
+        readout_sensitive: false,
     };
     let e = LevelRow {
         id: "e".into(),
@@ -82,6 +89,7 @@ pub(crate) fn vet_report() -> VetReport {
             exact_gaussian: Some(1.1e-9),
             exact_blackman: None,
             exact_at_length: Some(4e-4),
+            not_checked: Vec::new(),
         }),
         ..g.clone()
     };
@@ -124,7 +132,24 @@ pub(crate) fn vet_report() -> VetReport {
                 peak_intensity: None,
             },
         ],
+        readout: crate::model::Readout::WindowEnd,
+        dynamics: crate::model::Dynamics::Amplitudes,
+        initial_kind: crate::model::InitialKind::Coherent,
+        initial_levels: 1,
+        scattered_photons: None,
     }
+}
+
+/// [`vet_report`] with the Blackman check of the leak's remedy not run,
+/// and why (a reason with LaTeX specials).
+pub(crate) fn vet_report_with_unchecked_remedy() -> VetReport {
+    let mut r = vet_report();
+    let remedy = r.levels[2].remedy.as_mut().expect("s has a remedy");
+    remedy.not_checked.push(UncheckedRemedy::new(
+        RemedyCheck::Blackman,
+        "the run needs more than 10 steps; raise SolveOptions::step_budget",
+    ));
+    r
 }
 
 /// An inspect report with two levels, one drive and one field.

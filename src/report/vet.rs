@@ -4,13 +4,13 @@
 //!
 //! Owns: [`VetReport`] and its rows, [`vet`], [`judge_targets`], the
 //! reliability rule. Must not: run a propagator (the exact checks of the
-//! remedies are filled in by the app), format numbers.
+//! remedies are filled in by the pipeline), format numbers.
 
 use super::json_units;
 use super::safety::{safety_notes, SafetyNote};
 use super::{roles, Provenance, Role, SolverFacts};
 use crate::estimate::{self, Estimate, EstimateError, Order};
-use crate::model::Model;
+use crate::model::{Dynamics, InitialKind, Model, Readout};
 use crate::solve::Solution;
 use serde::ser::{SerializeStruct, Serializer};
 use serde::Serialize;
@@ -42,25 +42,50 @@ pub struct SourceRow {
     pub order: Order,
     /// Whether this drive is in the dynamics (false: beyond the cutoff).
     pub included: bool,
+    /// How the population arrives: by the drive itself, or by decay of
+    /// `via` after the drive excites it.
+    pub channel: Channel,
+    /// The decaying level of a decay source.
+    pub via: Option<String>,
+    /// Saturation parameter of the drive on `from -> via` (decay sources).
+    pub saturation: Option<f64>,
+}
+
+/// How a source's population arrives.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[non_exhaustive]
+pub enum Channel {
+    /// Coherently, by the drive (perturbation theory).
+    Drive,
+    /// By spontaneous emission from a level the drive excites (rate estimate).
+    Decay,
 }
 
 /// Written by hand because the population's key depends on a value:
 /// `second_order_population` for a second-order source,
 /// `first_order_population` otherwise (derive only knows fixed names).
 /// `order` itself is not a key (the level states it as `estimate_order`).
+/// A decay source adds `via`, `channel` ("decay") and `saturation` after
+/// the drive keys; a drive source has exactly the v1 keys.
 impl Serialize for SourceRow {
     fn serialize<S: Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
         let population_key = match self.order {
             Order::Second => "second_order_population",
             _ => "first_order_population",
         };
-        let mut m = s.serialize_struct("SourceRow", 6)?;
+        let decay = self.channel == Channel::Decay;
+        let mut m = s.serialize_struct("SourceRow", if decay { 9 } else { 6 })?;
         m.serialize_field("field", &self.field)?;
         m.serialize_field("from", &self.from)?;
         m.serialize_field("detuning_mhz", &json_units::Mhz(self.detuning))?;
         m.serialize_field("rabi_mhz", &json_units::Mhz(self.rabi))?;
         m.serialize_field(population_key, &self.population)?;
         m.serialize_field("in_dynamics", &self.included)?;
+        if decay {
+            m.serialize_field("via", &self.via)?;
+            m.serialize_field("channel", "decay")?;
+            m.serialize_field("saturation", &self.saturation)?;
+        }
         m.end()
     }
 }
@@ -87,13 +112,62 @@ pub struct RemedyRow {
     #[serde(rename = "fwhm_s")]
     pub fwhm: f64,
     /// The same three remedies checked by exact propagation (filled by the
-    /// app, which runs the propagator; None where not checked).
+    /// pipeline, which runs the propagator; None where not checked).
     #[serde(rename = "exact_gaussian_population")]
     pub exact_gaussian: Option<f64>,
     #[serde(rename = "exact_blackman_population")]
     pub exact_blackman: Option<f64>,
     #[serde(rename = "exact_population_at_length")]
     pub exact_at_length: Option<f64>,
+    /// The exact checks that could not be run (the changed scheme failed to
+    /// propagate or was refused), each with its reason; their `exact_*`
+    /// value stays None. No key when every check ran or none was asked for.
+    #[serde(skip_serializing_if = "Vec::is_empty")]
+    pub not_checked: Vec<UncheckedRemedy>,
+}
+
+/// Which of a remedy's three changed schemes an exact check concerns.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "snake_case")]
+#[non_exhaustive]
+pub enum RemedyCheck {
+    /// The Gaussian envelope of the same area and intensity FWHM.
+    Gaussian,
+    /// The Blackman envelope of the same area and intensity FWHM.
+    Blackman,
+    /// The present shape lengthened to `length_for_tolerance`.
+    AtLength,
+}
+
+impl RemedyCheck {
+    /// The name of the check as the JSON value spells it.
+    pub fn as_str(self) -> &'static str {
+        match self {
+            RemedyCheck::Gaussian => "gaussian",
+            RemedyCheck::Blackman => "blackman",
+            RemedyCheck::AtLength => "at_length",
+        }
+    }
+}
+
+/// A remedy's exact check that could not be run, and why. The report is
+/// still given: a remedy is advice beside the result, never the result.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+#[non_exhaustive]
+pub struct UncheckedRemedy {
+    pub check: RemedyCheck,
+    /// The error of the changed scheme's run, as the CLI would print it.
+    pub reason: String,
+}
+
+impl UncheckedRemedy {
+    /// The check `check` was not run because of `reason`.
+    pub fn new(check: RemedyCheck, reason: impl Into<String>) -> Self {
+        UncheckedRemedy {
+            check,
+            reason: reason.into(),
+        }
+    }
 }
 
 /// One level's line of the vet report.
@@ -127,6 +201,21 @@ pub struct LevelRow {
     pub unreliable: bool,
     #[serde(skip_serializing_if = "Option::is_none")]
     pub remedy: Option<RemedyRow>,
+    /// Population after the window once every decay has run its course
+    /// (present whenever a level of the scheme decays).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub settled_population: Option<f64>,
+    /// Population at the window end, where the readout is elsewhere.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub window_end_population: Option<f64>,
+    /// Spontaneous emissions from this level inside the window per atom
+    /// (density-matrix runs).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub scattered_photons: Option<f64>,
+    /// The window-end and settled populations of this target or spectator
+    /// differ by more than its tolerance: where the readout is taken matters.
+    #[serde(skip_serializing_if = "std::ops::Not::not")]
+    pub readout_sensitive: bool,
 }
 
 impl LevelRow {
@@ -187,6 +276,23 @@ pub struct VetReport {
     pub title: Option<String>,
     #[serde(rename = "laser_safety")]
     pub safety: Vec<SafetyNote>,
+    /// When final populations are judged.
+    #[serde(serialize_with = "json_units::readout")]
+    pub readout: Readout,
+    /// The equation that ran.
+    #[serde(serialize_with = "json_units::dynamics")]
+    pub dynamics: Dynamics,
+    /// How the initial populations combine.
+    #[serde(rename = "initial_state", serialize_with = "json_units::initial_kind")]
+    pub initial_kind: InitialKind,
+    /// Whether the initial state has more than one populated level (the
+    /// text says how it was taken).
+    #[serde(skip)]
+    pub initial_levels: usize,
+    /// Expected spontaneous emissions per atom inside the window (present
+    /// in every density-matrix run).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub scattered_photons: Option<f64>,
 }
 
 impl VetReport {
@@ -195,12 +301,16 @@ impl VetReport {
         let top = [
             ("lost population", self.lost_population),
             ("norm error", self.norm_error),
+            ("scattered photons", self.scattered_photons.unwrap_or(0.0)),
         ];
         if let Some((name, _)) = top.iter().find(|(_, v)| !v.is_finite()) {
             return Some(name.to_string());
         }
         for l in &self.levels {
             let mut vals = vec![l.final_population, l.peak_population];
+            vals.extend(l.settled_population);
+            vals.extend(l.window_end_population);
+            vals.extend(l.scattered_photons);
             vals.extend(l.first_order);
             vals.extend(l.second_order);
             vals.extend(l.ratio);
@@ -209,6 +319,7 @@ impl VetReport {
                     .iter()
                     .flat_map(|s| [s.detuning, s.rabi, s.population]),
             );
+            vals.extend(l.sources.iter().filter_map(|s| s.saturation));
             if let Some(r) = &l.remedy {
                 vals.extend([r.gaussian_same_area, r.blackman_same_area, r.present_length]);
                 vals.extend(r.length_for_tolerance);
@@ -231,22 +342,41 @@ impl VetReport {
     }
 }
 
-fn source_rows(model: &Model, order: Order, sources: &[estimate::Source]) -> Vec<SourceRow> {
-    sources
+/// The drive sources, then the decay sources, together largest first (a
+/// stable sort: drive sources keep their order among themselves).
+fn source_rows(model: &Model, est: &estimate::LevelEstimate) -> Vec<SourceRow> {
+    let order = est.order;
+    let row = |drive: usize, from: usize, detuning: f64, rabi: f64, population: f64| {
+        let d = &model.drives[drive];
+        SourceRow {
+            field: model.fields[d.field].id.clone(),
+            from: model.levels[from].id.clone(),
+            detuning,
+            rabi,
+            population,
+            order,
+            included: model.drive_included(d),
+            channel: Channel::Drive,
+            via: None,
+            saturation: None,
+        }
+    };
+    let mut rows: Vec<SourceRow> = est
+        .sources
         .iter()
-        .map(|s| {
-            let d = &model.drives[s.drive];
-            SourceRow {
-                field: model.fields[d.field].id.clone(),
-                from: model.levels[s.from].id.clone(),
-                detuning: s.detuning,
-                rabi: s.rabi,
-                population: s.population,
-                order,
-                included: model.drive_included(d),
-            }
-        })
-        .collect()
+        .map(|s| row(s.drive, s.from, s.detuning, s.rabi, s.population))
+        .collect();
+    if est.decay_sources.is_empty() {
+        return rows;
+    }
+    rows.extend(est.decay_sources.iter().map(|s| SourceRow {
+        channel: Channel::Decay,
+        via: Some(model.levels[s.via].id.clone()),
+        saturation: Some(s.saturation),
+        ..row(s.drive, s.from, s.detuning, s.rabi, s.population)
+    }));
+    rows.sort_by(|a, b| b.population.total_cmp(&a.population));
+    rows
 }
 
 fn unreliable(estimate: Option<f64>, exact: f64) -> bool {
@@ -279,6 +409,7 @@ fn remedy_row(model: &Model, r: &estimate::Remedy) -> RemedyRow {
         exact_gaussian: None,
         exact_blackman: None,
         exact_at_length: None,
+        not_checked: Vec::new(),
     }
 }
 
@@ -313,6 +444,14 @@ pub fn vet(
             Some(e) if e > NEGLIGIBLE && fin > NEGLIGIBLE => Some(fin / e),
             _ => None,
         };
+        let settled = solution.settled_populations.as_ref().map(|p| p[k]);
+        let end = solution.window_end_populations[k];
+        // Amplitude runs (v1) lose every decay from the scheme: their
+        // settled populations say nothing a planner reads off, so only
+        // density-matrix runs are judged for it.
+        let readout_sensitive = solution.dynamics == Dynamics::DensityMatrix
+            && matches!(role, Role::Spectator | Role::Target)
+            && settled.is_some_and(|p| (p - end).abs() > tol);
         let remedy = if is_flagged {
             estimate::remedy(model, k, tol)?.map(|r| remedy_row(model, &r))
         } else {
@@ -334,9 +473,13 @@ pub fn vet(
             tolerance: tol,
             flagged: is_flagged,
             below_goal: false,
-            unreliable: role != Role::Initial && unreliable(shown, fin),
-            sources: source_rows(model, est.order, &est.sources),
+            unreliable: role != Role::Initial && (unreliable(shown, fin) || !est.decay_reliable()),
+            sources: source_rows(model, est),
             remedy,
+            settled_population: settled,
+            window_end_population: (model.readout() != Readout::WindowEnd).then_some(end),
+            scattered_photons: solution.scattered_photons.as_ref().map(|p| p[k]),
+            readout_sensitive,
         });
     }
     let excluded = estimate
@@ -378,6 +521,11 @@ pub fn vet(
         goal: None,
         targets_short: 0,
         safety: safety_notes(model),
+        readout: model.readout(),
+        dynamics: solution.dynamics,
+        initial_kind: model.initial_kind(),
+        initial_levels: model.initial().iter().filter(|p| **p > 0.0).count(),
+        scattered_photons: solution.scattered_photons.as_ref().map(|p| p.iter().sum()),
     })
 }
 

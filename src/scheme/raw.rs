@@ -149,11 +149,67 @@ impl<'de, T: Deserialize<'de>> Deserialize<'de> for Ordered<T> {
     }
 }
 
-/// `initial:` either one level id or a map id -> population.
+/// `initial:` either one level id or a map id -> population (whose one
+/// entry may be `mixture:` or `superposition:` holding such a map).
 #[derive(Debug, Clone, PartialEq)]
 pub enum Initial {
     One(Id),
+    Map(Ordered<InitialValue>),
+}
+
+/// A value in the `initial:` map: a population, or a nested map (only
+/// meaningful under `mixture` or `superposition`; validation says so).
+#[derive(Debug, Clone, PartialEq)]
+pub enum InitialValue {
+    Population(Option<Scalar>),
     Map(Ordered<Option<Scalar>>),
+}
+
+impl<'de> Deserialize<'de> for InitialValue {
+    fn deserialize<D: Deserializer<'de>>(d: D) -> Result<Self, D::Error> {
+        struct V;
+        impl<'de> Visitor<'de> for V {
+            type Value = InitialValue;
+            fn expecting(&self, f: &mut fmt::Formatter) -> fmt::Result {
+                f.write_str("a population, or a map of level id: population")
+            }
+            fn visit_unit<E: de::Error>(self) -> Result<InitialValue, E> {
+                Ok(InitialValue::Population(None))
+            }
+            fn visit_none<E: de::Error>(self) -> Result<InitialValue, E> {
+                Ok(InitialValue::Population(None))
+            }
+            fn visit_bool<E: de::Error>(self, v: bool) -> Result<InitialValue, E> {
+                Ok(InitialValue::Population(Some(Scalar::Bool(v))))
+            }
+            fn visit_i64<E: de::Error>(self, v: i64) -> Result<InitialValue, E> {
+                Ok(InitialValue::Population(Some(Scalar::Num(v as f64))))
+            }
+            fn visit_u64<E: de::Error>(self, v: u64) -> Result<InitialValue, E> {
+                Ok(InitialValue::Population(Some(Scalar::Num(v as f64))))
+            }
+            fn visit_f64<E: de::Error>(self, v: f64) -> Result<InitialValue, E> {
+                Ok(InitialValue::Population(Some(Scalar::Num(v))))
+            }
+            fn visit_str<E: de::Error>(self, v: &str) -> Result<InitialValue, E> {
+                Ok(InitialValue::Population(Some(Scalar::Str(v.to_string()))))
+            }
+            fn visit_map<A: MapAccess<'de>>(self, m: A) -> Result<InitialValue, A::Error> {
+                Ordered::deserialize(de::value::MapAccessDeserializer::new(m))
+                    .map(InitialValue::Map)
+            }
+        }
+        d.deserialize_any(V)
+    }
+}
+
+impl Serialize for InitialValue {
+    fn serialize<S: Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
+        match self {
+            InitialValue::Population(p) => p.serialize(s),
+            InitialValue::Map(m) => m.serialize(s),
+        }
+    }
 }
 
 impl<'de> Deserialize<'de> for Initial {
@@ -182,7 +238,7 @@ impl<'de> Deserialize<'de> for Initial {
             fn visit_map<A: MapAccess<'de>>(self, mut m: A) -> Result<Initial, A::Error> {
                 let mut out = Vec::new();
                 while let Some(k) = m.next_key::<Id>()? {
-                    let v = m.next_value::<Option<Scalar>>()?;
+                    let v = m.next_value::<InitialValue>()?;
                     out.push((k, v));
                 }
                 Ok(Initial::Map(Ordered(out)))
@@ -254,6 +310,8 @@ pub struct RawScheme {
     pub window: Option<RawWindow>,
     #[serde(skip_serializing_if = "Option::is_none")]
     pub solver: Option<RawSolver>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub readout: Option<Scalar>,
 }
 
 #[derive(Debug, Clone, Default, Deserialize, Serialize)]
@@ -269,6 +327,10 @@ pub struct RawLevel {
     pub tolerance: Option<Scalar>,
     #[serde(skip_serializing_if = "Option::is_none")]
     pub label: Option<Scalar>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub decays_to: Option<Ordered<Option<Scalar>>>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub dephasing: Option<Scalar>,
 }
 
 #[derive(Debug, Clone, Default, Deserialize, Serialize)]
@@ -315,6 +377,8 @@ pub struct RawField {
     pub phase: Option<Scalar>,
     #[serde(skip_serializing_if = "Option::is_none")]
     pub rwa: Option<bool>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub linewidth: Option<Scalar>,
 }
 
 #[derive(Debug, Clone, Default, Deserialize, Serialize)]
@@ -376,4 +440,6 @@ pub struct RawSolver {
     pub method: Option<Scalar>,
     #[serde(skip_serializing_if = "Option::is_none")]
     pub detuning_cutoff: Option<Scalar>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub dynamics: Option<Scalar>,
 }

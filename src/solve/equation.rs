@@ -123,6 +123,19 @@ pub trait Equation {
     fn norm(&self, y: &[f64]) -> f64;
     /// The quantity lost from the system so far.
     fn lost(&self, y: &[f64]) -> f64;
+    /// How far the state is from a physical one beyond its norm (a density
+    /// matrix: from positive semidefinite); 0 where it cannot be otherwise
+    /// (amplitudes). `thorough`: the full test (once per run), else a
+    /// cheap necessary one (every step).
+    fn positivity_defect(&self, _y: &[f64], _thorough: bool) -> f64 {
+        0.0
+    }
+    /// Spontaneous emissions of every level so far per atom (Gamma_k times
+    /// the integral of its population) into `out`; false where the
+    /// equation does not count them.
+    fn scattered_photons(&self, _y: &[f64], _out: &mut [f64]) -> bool {
+        false
+    }
     /// The generator of the current stretch (after
     /// [`Equation::enter_stretch`]) into `out`, or false where the equation
     /// has none there (the exact stepper then does not apply).

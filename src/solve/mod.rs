@@ -2,7 +2,7 @@
 //! know each other's insides:
 //!
 //! - an **equation** (`equation.rs`, the trait; `equations/`, one file per
-//!   equation: today the Schrodinger amplitudes) supplies the state, the
+//!   equation: the Schrodinger amplitudes, the Lindblad density matrix) supplies the state, the
 //!   right-hand side, populations, norm and lost part, and for
 //!   piecewise-constant stretches the generator;
 //! - a **stepper** (`steppers/`: adaptive Dormand-Prince 8(5,3), exact
@@ -15,7 +15,9 @@
 //! only where [`SolveOptions::peaks`] asks for them (the exact stepper then
 //! sub-steps stretches to sample them).
 //!
-//! Owns: the method choice, the [`Solution`] (bare-basis populations, peaks,
+//! Owns: the method and equation choice, the readout (`readout.rs`: the
+//! populations at the readout time, settled after the window, scattered
+//! photons), the [`Solution`] (bare-basis populations, peaks,
 //! loss, norm error, method and statistics). Must not: print, read files, or
 //! know about the perturbative estimator or any output format.
 //!
@@ -30,12 +32,15 @@ pub mod steppers;
 pub use steppers::adaptive;
 pub use steppers::exact::PEAK_TOLERANCE;
 
+mod readout;
+
 use equation::Equation;
 use equations::amplitudes::Amplitudes;
+use equations::density::{DensityMatrix, EXACT_MAX_LEVELS};
 use observers::ObserverSet;
 
 use crate::hamiltonian::{AssemblyError, FrameHamiltonian};
-use crate::model::{Method, Model};
+use crate::model::{Dynamics, Method, Model};
 
 /// Which propagator produced a solution.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -73,17 +78,39 @@ impl Default for SolveOptions {
     }
 }
 
-/// Result of one propagation. Populations are |c_k|^2 in the bare basis.
+/// Result of one propagation. Populations are |c_k|^2 (amplitudes) or
+/// rho_kk (density matrix) in the bare basis.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Solution {
     pub method: MethodUsed,
-    /// Final population of each level (model order).
+    /// The equation that ran (never `Auto`).
+    pub dynamics: Dynamics,
+    /// Population of each level at the readout (model order): the window
+    /// end unless the model's readout says otherwise.
     pub final_populations: Vec<f64>,
+    /// Population of each level at the window end (the same as
+    /// `final_populations` with the default readout).
+    pub window_end_populations: Vec<f64>,
+    /// Populations after the window once every decay has run its course,
+    /// drives off (rate equations, exact); None where no level decays.
+    pub settled_populations: Option<Vec<f64>>,
+    /// The population lost at that point (window-end loss plus the lost
+    /// share of the decays after it).
+    pub settled_lost: Option<f64>,
+    /// Spontaneous emissions of each level inside the window per atom,
+    /// Gamma_k times the integral of rho_kk (density-matrix runs only).
+    pub scattered_photons: Option<Vec<f64>>,
+    /// Largest positivity defect of the state over the run (0 for
+    /// amplitudes).
+    pub positivity_error: f64,
     /// Largest population of each level during the window; the final
     /// populations where `SolveOptions::peaks` is false.
     pub peak_populations: Vec<f64>,
-    /// Population lost by decay, 1 - sum |c|^2 predicted by the decay terms.
+    /// Population lost by decay at the readout, 1 - sum P predicted by the
+    /// decay terms.
     pub lost: f64,
+    /// Population lost by decay at the window end.
+    pub window_end_lost: f64,
     /// |1 - sum P - lost| over the run.
     pub norm_error: f64,
     /// Accepted steps (adaptive) or segments/sub-steps (exact; one per
@@ -103,7 +130,7 @@ pub struct Solution {
 /// Why a propagation failed.
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]
 pub enum SolveError {
-    #[error("the run needs more than {budget} steps: the fastest time scale is {period_s:.3e} s, set by {cause}; shorten the window, or lower solver.detuning_cutoff to leave that drive out (library callers may raise SolveOptions::step_budget)")]
+    #[error("the run needs more than {budget} steps: the fastest time scale is {period_s:.3e} s, set by {cause}; shorten the window, lower solver.detuning_cutoff to leave that drive out, or raise the budget (--step-budget N on the command line, SolveOptions::step_budget in the library)")]
     StepBudget {
         budget: u64,
         period_s: f64,
@@ -120,16 +147,25 @@ pub enum SolveError {
 /// Propagate the model over its window with the method its settings ask for.
 ///
 /// `method: auto` runs the exact propagator where the frame Hamiltonian is
-/// piecewise constant and the adaptive one otherwise; `exact` fails with
-/// [`SolveError::ExactNotApplicable`] where it does not apply. Populations are
-/// bare-basis |c_k|^2 whatever frame the solver uses.
+/// piecewise constant (and, for a density matrix, the model has at most
+/// [`EXACT_MAX_LEVELS`] levels) and the adaptive one otherwise; `exact`
+/// fails with [`SolveError::ExactNotApplicable`] where it does not apply.
+/// The equation is the model's [`Model::dynamics`]. Populations are
+/// bare-basis whatever frame the solver uses.
 pub fn solve(model: &Model, opts: &SolveOptions) -> Result<Solution, SolveError> {
     let fh = FrameHamiltonian::build(model).map_err(|e| match e {
         AssemblyError::NonFinite(what) => SolveError::NonFinite {
             stage: format!("Hamiltonian assembly ({what})"),
         },
     })?;
-    let obstacle = fh.piecewise_constant_obstacle(model);
+    let dynamics = model.dynamics();
+    let mut obstacle = fh.piecewise_constant_obstacle(model);
+    if dynamics == Dynamics::DensityMatrix && obstacle.is_none() && fh.dim() > EXACT_MAX_LEVELS {
+        obstacle = Some(format!(
+            "a density matrix of {} levels is beyond the exact propagator's {EXACT_MAX_LEVELS}",
+            fh.dim()
+        ));
+    }
     let method = match (model.solver.method, &obstacle) {
         (Method::Exact, Some(reason)) => {
             return Err(SolveError::ExactNotApplicable {
@@ -139,17 +175,27 @@ pub fn solve(model: &Model, opts: &SolveOptions) -> Result<Solution, SolveError>
         (Method::Exact, None) | (Method::Auto, None) => MethodUsed::Exact,
         (Method::Adaptive, _) | (Method::Auto, Some(_)) => MethodUsed::Adaptive,
     };
-    let plan = plan::Plan::new(model, &fh, opts.samples);
+    let plan = plan::Plan::new(model, &fh, opts.samples, readout::time(model));
     // The window ends after it starts (the model's builder checked it).
-    let mut eq = Amplitudes::new(model, &fh);
-    let solution = run(&mut eq, model, &fh, &plan, method, opts)?;
+    let solution = if dynamics == Dynamics::DensityMatrix {
+        let mut eq = DensityMatrix::new(model, &fh);
+        let mut sol = run(&mut eq, model, &fh, &plan, method, opts)?;
+        sol.dynamics = Dynamics::DensityMatrix;
+        sol
+    } else {
+        let mut eq = Amplitudes::new(model, &fh);
+        run(&mut eq, model, &fh, &plan, method, opts)?
+    };
     let finite = solution
         .final_populations
         .iter()
         .chain(&solution.peak_populations)
+        .chain(solution.settled_populations.iter().flatten())
+        .chain(solution.scattered_photons.iter().flatten())
         .all(|p| p.is_finite())
         && solution.lost.is_finite()
         && solution.norm_error.is_finite()
+        && solution.positivity_error.is_finite()
         && solution
             .samples
             .iter()
@@ -173,7 +219,8 @@ fn run<E: Equation>(
 ) -> Result<Solution, SolveError> {
     let mut y = vec![0.0; eq.dim()];
     eq.initial_state(&mut y);
-    let mut obs = ObserverSet::new(eq.levels(), plan.samples, opts.peaks);
+    let extra = usize::from(plan.readout.is_some_and(|r| r.1));
+    let mut obs = ObserverSet::new(eq.levels(), plan.samples + extra, opts.peaks);
     let stats = match method {
         MethodUsed::Exact => {
             steppers::exact::propagate(eq, &mut obs, &mut y, plan, opts, opts.peaks)?
@@ -182,22 +229,26 @@ fn run<E: Equation>(
             steppers::adaptive::propagate(eq, &mut obs, &mut y, model, fh, plan, opts)?
         }
     };
-    let mut final_populations = vec![0.0; eq.levels()];
-    eq.populations(&y, &mut final_populations);
+    let mut end = vec![0.0; eq.levels()];
+    eq.populations(&y, &mut end);
     let peak_populations = match obs.peaks {
-        Some(p) => p
-            .peaks
-            .iter()
-            .zip(&final_populations)
-            .map(|(p, f)| p.max(*f))
-            .collect(),
-        None => final_populations.clone(),
+        Some(p) => p.peaks.iter().zip(&end).map(|(p, f)| p.max(*f)).collect(),
+        None => end.clone(),
     };
+    let positivity_error = obs.positivity.error.max(readout::final_defect(eq, &y));
+    let r = readout::Readout::take(model, eq, &y, plan, &mut obs.samples.taken);
     Ok(Solution {
         method,
-        final_populations,
+        dynamics: Dynamics::Amplitudes,
+        final_populations: r.populations,
+        window_end_populations: end,
+        settled_populations: r.settled,
+        settled_lost: r.settled_lost,
+        scattered_photons: r.scattered,
+        positivity_error,
         peak_populations,
-        lost: eq.lost(&y),
+        lost: r.lost,
+        window_end_lost: eq.lost(&y),
         norm_error: obs.norm.error.max(obs.norm.drift(eq, &y)),
         steps: stats.steps,
         evaluations: stats.evaluations,

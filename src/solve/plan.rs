@@ -21,6 +21,10 @@ pub(crate) struct Plan {
     pub sample_at: Vec<Option<usize>>,
     /// Number of samples asked for.
     pub samples: usize,
+    /// Where a readout time inside the window is recorded: the position of
+    /// its state among the recorded samples, and whether that sample was
+    /// asked for too (otherwise it is the readout's alone).
+    pub readout: Option<(usize, bool)>,
 }
 
 /// The sample times: evenly spaced, including the window start and exactly
@@ -54,7 +58,9 @@ fn envelope_stops(e: &Envelope) -> Vec<f64> {
 }
 
 impl Plan {
-    pub fn new(model: &Model, fh: &FrameHamiltonian, samples: usize) -> Plan {
+    /// The stops of a run with `samples` samples and, where `readout` is a
+    /// time before the window end, a recorded state there.
+    pub fn new(model: &Model, fh: &FrameHamiltonian, samples: usize, readout: Option<f64>) -> Plan {
         let (start, end) = (model.window.start, model.window.end);
         let span = end - start;
         let tol = MERGE_FRACTION * span;
@@ -62,6 +68,11 @@ impl Plan {
         let mut cands: Vec<(f64, Option<usize>)> = Vec::new();
         for (i, t) in sample_times(start, end, samples).into_iter().enumerate() {
             cands.push((t, Some(i)));
+        }
+        let readout = readout.filter(|t| *t < end);
+        if let Some(t) = readout {
+            // Index `samples`: the readout's own record (one past the samples).
+            cands.push((t, Some(samples)));
         }
         let mut fields: Vec<usize> = fh.terms.iter().map(|t| t.field).collect();
         fields.sort_unstable();
@@ -79,8 +90,9 @@ impl Plan {
         for (t, s) in cands {
             let last = stops.len() - 1;
             if (t - stops[last]).abs() <= tol {
-                // Merge: a sample time wins over an envelope edge (it is exact).
-                if s.is_some() {
+                // Merge: a sample time wins over an envelope edge (it is
+                // exact), and an asked-for sample over the readout's record.
+                if s.is_some() && sample_at[last].is_none_or(|k| k == samples) {
                     if last > 0 {
                         stops[last] = t;
                     }
@@ -99,10 +111,19 @@ impl Plan {
             stops.push(end);
             sample_at.push(None);
         }
+        let readout = readout.map(|t| {
+            let stop = stops
+                .iter()
+                .position(|&x| (x - t).abs() <= tol)
+                .unwrap_or(0);
+            let position = sample_at[..stop].iter().filter(|s| s.is_some()).count();
+            (position, sample_at[stop] != Some(samples))
+        });
         Plan {
             stops,
             sample_at,
             samples,
+            readout,
         }
     }
 

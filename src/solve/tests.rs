@@ -58,13 +58,7 @@ impl Equation for Transfer {
 
 /// A model that only sets the window [0, t] (two undriven levels).
 fn window_model(t: f64) -> Model {
-    let level = |id: &str| Level {
-        id: id.into(),
-        label: None,
-        omega: 0.0,
-        gamma: 0.0,
-        tolerance: None,
-    };
+    let level = |id: &str| Level::new(id, 0.0);
     Model::builder()
         .levels(vec![level("a"), level("b")])
         .initial(vec![1.0, 0.0])
@@ -81,7 +75,7 @@ fn an_equation_defined_outside_runs_on_both_steppers() {
     let (k, t) = (3.0e6, 1.0e-6);
     let model = window_model(t);
     let fh = FrameHamiltonian::build(&model).expect("frame");
-    let plan = plan::Plan::new(&model, &fh, 5);
+    let plan = plan::Plan::new(&model, &fh, 5, None);
     for method in [MethodUsed::Exact, MethodUsed::Adaptive] {
         for peaks in [true, false] {
             let opts = SolveOptions {

@@ -43,6 +43,9 @@ pub enum Kind {
     Dipole,
     /// Rate (1/s), e.g. an Einstein A coefficient.
     Rate,
+    /// Damping rate (1/s): written in s^-1 as is, or in Hz units as
+    /// gamma / 2 pi (stored as 2 pi x value), e.g. a pure dephasing rate.
+    Damping,
     /// Intensity (W/m^2).
     Intensity,
     /// Power (W).
@@ -85,6 +88,7 @@ impl Kind {
             Kind::Length => LENGTH_UNITS,
             Kind::Dipole => DIPOLE_UNITS,
             Kind::Rate => RATE_UNITS,
+            Kind::Damping => DAMPING_UNITS,
             Kind::Intensity => INTENSITY_UNITS,
             Kind::Power => POWER_UNITS,
             Kind::Chirp => CHIRP_UNITS,
@@ -101,7 +105,7 @@ impl Kind {
             Kind::Carrier => "a frequency",
             Kind::Length => "a length",
             Kind::Dipole => "a dipole moment",
-            Kind::Rate => "a rate",
+            Kind::Rate | Kind::Damping => "a rate",
             Kind::Intensity => "an intensity",
             Kind::Power => "a power",
             Kind::Chirp => "a chirp rate",
@@ -117,7 +121,7 @@ impl Kind {
             Kind::Frequency | Kind::Carrier => "frequency",
             Kind::Length => "length",
             Kind::Dipole => "dipole moment",
-            Kind::Rate => "rate",
+            Kind::Rate | Kind::Damping => "rate",
             Kind::Intensity => "intensity",
             Kind::Power => "power",
             Kind::Chirp => "chirp rate",

@@ -189,6 +189,43 @@ pub(super) const RATE_UNITS: &[UnitDef] = &[
     },
 ];
 
+/// A damping rate: a rate in s^-1 (as written), or a cyclic frequency in Hz
+/// units (gamma / 2 pi, so the factor carries 2 pi).
+pub(super) const DAMPING_UNITS: &[UnitDef] = &[
+    UnitDef {
+        names: &["s^-1", "1/s", "s-1"],
+        factor: 1.0,
+    },
+    UnitDef {
+        names: &["ms^-1", "1/ms", "ms-1"],
+        factor: 1e3,
+    },
+    UnitDef {
+        names: &["us^-1", "1/us", "us-1"],
+        factor: 1e6,
+    },
+    UnitDef {
+        names: &["ns^-1", "1/ns", "ns-1"],
+        factor: 1e9,
+    },
+    UnitDef {
+        names: &["Hz"],
+        factor: TWO_PI,
+    },
+    UnitDef {
+        names: &["kHz"],
+        factor: TWO_PI * 1e3,
+    },
+    UnitDef {
+        names: &["MHz"],
+        factor: TWO_PI * 1e6,
+    },
+    UnitDef {
+        names: &["GHz"],
+        factor: TWO_PI * 1e9,
+    },
+];
+
 pub(super) const INTENSITY_UNITS: &[UnitDef] = &[
     UnitDef {
         names: &["W/cm^2", "W/cm2"],

@@ -221,7 +221,13 @@ fn evolve_ends_exactly_at_the_window_end_with_the_vet_populations() {
         let vet: serde_json::Value =
             serde_json::from_slice(&run(&["vet", d, "--format", "json"]).stdout).unwrap();
         for (k, l) in vet["levels"].as_array().unwrap().iter().enumerate() {
-            let p = l["final_population"].as_f64().unwrap();
+            // evolve ends at the window end; vet judges at the readout and
+            // then also gives the window-end population.
+            let p = l
+                .get("window_end_population")
+                .unwrap_or(&l["final_population"])
+                .as_f64()
+                .unwrap();
             assert!(
                 (p - last[k + 1]).abs() < 1e-7,
                 "{d}: level {k}: vet {p} vs evolve {}",
@@ -309,4 +315,84 @@ fn closed_pipe_ends_quietly() {
         assert_eq!(status.code(), Some(0), "closed pipe gave {status:?}");
         assert!(head.starts_with(b"# levelplan"));
     }
+}
+
+/// An invented rectangular pi pulse whose neighbour n leaks (as in
+/// `level_schemes/cookbook/fast_pi_rectangular.yaml`), written to a file.
+fn leaky_pi_scheme(dir: &Path) -> PathBuf {
+    let p = dir.join("leaky_pi.yaml");
+    std::fs::write(
+        &p,
+        "levels:\n  g: {energy: 0 cm^-1}\n  n: {energy: 507.290000 THz}\n  \
+         e: {energy: 507.290150 THz}\ninitial: g\ntargets: [e]\ntolerance: 1e-3\n\
+         couplings:\n  - {between: [g, e], dipole: 2.2 ea0}\n  - {between: [g, n], dipole: 1.5 ea0}\n\
+         fields:\n  probe:\n    tuned: {to: [g, e], detuning: 0 MHz}\n    \
+         area: {on: [g, e], value: pi}\n    \
+         envelope: {shape: rectangular, start: 2 ns, duration: 8 ns}\n\
+         window: {start: 0 ns, end: 12 ns}\n",
+    )
+    .unwrap();
+    p
+}
+
+#[test]
+fn step_budget_flag_reaches_every_propagating_command() {
+    let d = scratch("step-budget");
+    let s = leaky_pi_scheme(&d);
+    let s = s.to_str().unwrap();
+    let vary = "fields.probe.tuned.detuning=-1MHz..1MHz:3";
+    let cases: [&[&str]; 4] = [
+        &["vet", s],
+        &["evolve", s, "--samples", "5"],
+        &["scan", s, "--vary", vary],
+        &["tune", s, "--vary", vary, "--maximize", "e"],
+    ];
+    for args in cases {
+        // The main run has 3 segments: a budget of 1 refuses it.
+        let out = run(&[args, &["--step-budget", "1"]].concat());
+        let err = String::from_utf8_lossy(&out.stderr);
+        assert_eq!(out.status.code(), Some(1), "{args:?}: {err}");
+        assert!(err.contains("needs more than 1 steps"), "{args:?}: {err}");
+        assert!(err.contains("--step-budget"), "{args:?}: {err}");
+        assert!(out.stdout.is_empty() || args[0] == "scan", "{args:?}");
+        let out = run(&[args, &["--step-budget", "100000000"]].concat());
+        let want = if args[0] == "vet" { 3 } else { 0 };
+        assert_eq!(out.status.code(), Some(want), "{args:?}");
+        for bad in ["0", "ten", "1.5"] {
+            let out = run(&[args, &["--step-budget", bad]].concat());
+            let err = String::from_utf8_lossy(&out.stderr);
+            assert_eq!(out.status.code(), Some(2), "{args:?} {bad}: {err}");
+            assert!(err.contains("--step-budget"), "{args:?} {bad}: {err}");
+        }
+    }
+}
+
+#[test]
+fn a_remedy_not_checked_keeps_the_report_and_its_exit_status() {
+    let d = scratch("remedy-unchecked");
+    let s = leaky_pi_scheme(&d);
+    let s = s.to_str().unwrap();
+    // 10 steps hold the exact main run, not the adaptive Gaussian remedy.
+    let out = run(&["vet", s, "--step-budget", "10"]);
+    let text = String::from_utf8_lossy(&out.stdout);
+    assert_eq!(
+        out.status.code(),
+        Some(3),
+        "the leak decides: {}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    assert!(
+        text.contains("(not checked: the run needs more than 10 steps"),
+        "{text}"
+    );
+    assert!(text.contains("verdict: 1 spectator(s) above tolerance"));
+    let full = run(&["vet", s]);
+    assert_eq!(full.status.code(), Some(3));
+    assert!(!String::from_utf8_lossy(&full.stdout).contains("not checked"));
+    let out = run(&["vet", s, "--step-budget", "10", "--format", "json"]);
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let unchecked = &v["levels"][1]["remedy"]["not_checked"];
+    assert_eq!(unchecked[0]["check"], "gaussian");
+    assert_eq!(unchecked[1]["check"], "blackman");
+    assert!(v["levels"][1]["remedy"]["exact_population_at_length"].is_number());
 }

@@ -70,6 +70,16 @@ const CASES: &[(&str, &[&str], i32)] = &[
         0,
     ),
     (
+        "lambda_pumping.vet.json",
+        &["vet", "level_schemes/lambda_pumping.yaml"],
+        3,
+    ),
+    (
+        "lambda_pumping.inspect.json",
+        &["inspect", "level_schemes/lambda_pumping.yaml"],
+        0,
+    ),
+    (
         "fixture_two_level_scan.vet.json",
         &["vet", "tests/fixtures/two_level_scan.yaml"],
         0,

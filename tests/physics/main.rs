@@ -9,7 +9,9 @@ mod solve_support;
 
 mod demo_schemes;
 mod estimate;
+mod estimate_rates;
 mod estimate_remedy;
+mod open_reference;
 mod propagation_budget;
 mod propagation_dop853;
 mod propagation_invariance;

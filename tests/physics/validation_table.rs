@@ -21,6 +21,14 @@ use std::path::Path;
 /// Tests in the physics files that check no physics, with the reason.
 const NOT_PHYSICS: &[(&str, &str)] = &[
     (
+        "tests/physics/open_reference.rs::every_open_fixture_is_checked",
+        "bookkeeping: every fixture file has a test",
+    ),
+    (
+        "tests/physics/open_reference.rs::the_comparison_accepts_the_reference_and_catches_changes",
+        "checks the comparison code, not the physics",
+    ),
+    (
         "tests/physics/propagation_budget.rs::step_budget_fails_fast_naming_the_drive",
         "error path: the step budget stops at once and names the drive",
     ),

@@ -1,5 +1,6 @@
 //! Regression tests: one per defect found by the property tests
-//! (`tests/regressions/properties.rs`) and by fuzzing (`fuzz/`, see `docs/reliability.md`).
+//! (`tests/regressions/properties.rs`), by fuzzing (`fuzz/`, see `docs/reliability.md`)
+//! and in review.
 //! Each test is named after what was found and fails on the code before the
 //! fix. All schemes are invented, illustrative numbers.
 
@@ -287,4 +288,87 @@ fn float_ids_are_refused_not_rewritten() {
     let ints = "levels:\n  1: {energy: 0 eV}\n  2: {energy: 1 eV}\ninitial: 1\n\
                 couplings:\n  - {between: [1, 2], dipole: 1}\nwindow: {start: 0 s, end: 1 us}\n";
     assert!(scheme::parse(ints, "x").is_ok());
+}
+
+/// An invented rectangular pi pulse on g -> e with a neighbour n 150 MHz
+/// below e driven by the same field: n leaks, so `vet` proposes a remedy.
+const NEIGHBOUR_LEAK: &str = r#"levels:
+  g: {energy: "0 cm^-1"}
+  n: {energy: "507.290000 THz", lifetime: "1.2 us"}
+  e: {energy: "507.290150 THz", lifetime: "1.2 us"}
+initial: g
+targets: [e]
+tolerance: 1e-3
+couplings:
+  - {between: [g, e], dipole: "2.2 ea0"}
+  - {between: [g, n], dipole: "1.5 ea0"}
+fields:
+  probe:
+    tuned: {to: [g, e], detuning: "0 MHz"}
+    area: {on: [g, e], value: "pi"}
+    envelope: {shape: rectangular, start: "2 ns", duration: "8 ns"}
+window: {start: "0 ns", end: "12 ns"}
+"#;
+
+// Found in review: a remedy whose exact check could not be run failed the
+// whole `vet` (the remedy's error was returned and the command exited 1
+// although the main result was fine). Now it is listed as not checked,
+// with the reason, and the report stands. The
+// main run is exact (3 segments); the Gaussian and Blackman replacements
+// need the adaptive stepper and far more than 10 steps, the lengthened
+// rectangular pulse stays exact. With `method: exact` the smooth
+// replacements cannot be propagated at all.
+#[test]
+fn a_remedy_check_that_fails_is_reported_not_checked() {
+    use levelplan::pipeline::{vet, vet_status, VetOptions};
+    use levelplan::report::{Provenance, RemedyCheck};
+    let prov = Provenance::new("inline.yaml", "0");
+    let m = levelplan::scheme::parse(NEIGHBOUR_LEAK, "inline.yaml").unwrap();
+    let full = vet(&m, prov.clone(), &VetOptions::default()).unwrap();
+    let small = vet(
+        &m,
+        prov.clone(),
+        &VetOptions::default().with_step_budget(10),
+    )
+    .expect("a remedy check never fails the report");
+    assert_eq!(vet_status(&small), vet_status(&full));
+    assert_eq!(vet_status(&small), levelplan::error::EXIT_TOLERANCE);
+    // The same main result: the smaller budget only samples the peaks more
+    // coarsely (the exact stepper's sub-steps), the final state stays exact.
+    for (a, b) in small.levels.iter().zip(&full.levels) {
+        let d = (a.final_population - b.final_population).abs();
+        assert!(d < 1e-12, "{}: {d:e}", a.id);
+        assert_eq!(a.flagged, b.flagged, "{}", a.id);
+    }
+    let (rs, rf) = (
+        small.levels[1].remedy.as_ref().expect("n leaks"),
+        full.levels[1].remedy.as_ref().expect("n leaks"),
+    );
+    assert!(rf.not_checked.is_empty() && rf.exact_gaussian.is_some());
+    assert_eq!((rs.exact_gaussian, rs.exact_blackman), (None, None));
+    let (at_small, at_full) = (rs.exact_at_length.unwrap(), rf.exact_at_length.unwrap());
+    assert!(
+        (at_small - at_full).abs() < 1e-12,
+        "{at_small:e} {at_full:e}"
+    );
+    let checks: Vec<RemedyCheck> = rs.not_checked.iter().map(|u| u.check).collect();
+    assert_eq!(checks, [RemedyCheck::Gaussian, RemedyCheck::Blackman]);
+    for u in &rs.not_checked {
+        assert!(
+            u.reason.contains("needs more than 10 steps"),
+            "{}",
+            u.reason
+        );
+        assert!(u.reason.contains("--step-budget"), "{}", u.reason);
+    }
+
+    let exact = format!("{NEIGHBOUR_LEAK}solver: {{method: exact}}\n");
+    let m = levelplan::scheme::parse(&exact, "inline.yaml").unwrap();
+    let rep = vet(&m, prov, &VetOptions::default()).expect("the report stands");
+    let r = rep.levels[1].remedy.as_ref().expect("n leaks");
+    assert_eq!(r.not_checked.len(), 2);
+    assert!(r.not_checked[0]
+        .reason
+        .contains("method 'exact' needs a piecewise-constant frame Hamiltonian"));
+    assert!(r.exact_at_length.is_some());
 }

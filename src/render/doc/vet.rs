@@ -8,7 +8,8 @@ use super::{
     method_name, numfmt, order_name, provenance_meta, safety_section, table, window_meta, Align,
     Cell, Doc, Mark, Section, MODEL_TEXT, TWO_PI,
 };
-use crate::report::{LevelRow, RemedyRow, Role, VetReport};
+use crate::model::{Dynamics, InitialKind, Readout};
+use crate::report::{Channel, LevelRow, RemedyCheck, RemedyRow, Role, SourceRow, VetReport};
 
 fn status_cell(row: &LevelRow) -> Cell {
     let mut words = Vec::new();
@@ -114,13 +115,70 @@ fn levels_section(r: &VetReport) -> Section {
         &[Left, Left, Right, Right, Right, Left, Right, Right, Left],
         rows,
     );
+    let mut notes = level_notes(r);
+    notes.extend(open_notes(r));
     Section {
         heading: "Populations at the end of the window".into(),
         table: Some(levels),
-        notes: vec![
-            "final and peak: exact propagation; estimate: perturbation theory of the stated order from the initial populations; LEAK: spectator above its tolerance; est?: estimate above 0.1 or off the exact value by more than a factor 2.".into(),
-        ],
+        notes,
     }
+}
+
+/// Notes on the open-system side of a run: where "final" is read, the
+/// equation, the photons scattered, an initial superposition, and levels
+/// whose window-end and settled populations differ beyond tolerance.
+fn open_notes(r: &VetReport) -> Vec<String> {
+    let mut notes = Vec::new();
+    match r.readout {
+        Readout::WindowEnd => {}
+        Readout::Settled => notes.push(
+            "readout settled: final is taken after the window, drives off, once every decay has run its course (rate equations, exact).".into(),
+        ),
+        Readout::At(t) => notes.push(format!(
+            "readout at {}: final is taken there, inside the window.",
+            numfmt::time(t).plain()
+        )),
+    }
+    if r.dynamics == Dynamics::DensityMatrix {
+        let photons = r.scattered_photons.unwrap_or(0.0);
+        notes.push(format!(
+            "dynamics: Lindblad master equation for the density matrix; {} spontaneous emissions per atom inside the window.",
+            numfmt::sci(photons, 3, "").plain()
+        ));
+    }
+    if r.initial_kind == InitialKind::Coherent && r.initial_levels > 1 {
+        notes.push(
+            "initial: the populations are taken as a coherent superposition (amplitudes sqrt(p), phase 0); write initial: {mixture: {...}} for an incoherent mixture.".into(),
+        );
+    }
+    for l in r.levels.iter().filter(|l| l.readout_sensitive) {
+        let end = l.window_end_population.unwrap_or(l.final_population);
+        notes.push(format!(
+            "{}: {} at the window end but {} settled: the readout time matters for this level.",
+            l.id,
+            numfmt::population(end).plain(),
+            numfmt::population(l.settled_population.unwrap_or(end)).plain()
+        ));
+    }
+    notes
+}
+
+/// The notes under the level table; the decay note only where a level is
+/// fed by decay.
+fn level_notes(r: &VetReport) -> Vec<String> {
+    let mut notes = vec![
+        "final and peak: exact propagation; estimate: perturbation theory of the stated order from the initial populations; LEAK: spectator above its tolerance; est?: estimate above 0.1 or off the exact value by more than a factor 2.".into(),
+    ];
+    let decay_fed = r
+        .levels
+        .iter()
+        .any(|l| l.sources.iter().any(|s| s.channel == Channel::Decay));
+    if decay_fed {
+        notes.push(
+            "estimates include population arriving by decay (weak-drive scattering rate); est? also marks a saturated drive (s > 0.1), a depleted initial level (> 0.1) or a pulse not long against the line's coherence time.".into(),
+        );
+    }
+    notes
 }
 
 /// The leaks with the drives that feed them, and the remedies.
@@ -135,7 +193,7 @@ fn leak_sections(r: &VetReport) -> Vec<Section> {
             leak_rows.push(vec![
                 Cell::text(&l.id).marked(Mark::Alert),
                 Cell::text(&s.field),
-                Cell::text(&s.from),
+                Cell::text(&source_from(s)),
                 Cell::num(numfmt::frequency(s.detuning / TWO_PI, true)),
                 Cell::num(numfmt::frequency(s.rabi / TWO_PI, false)),
                 Cell::num(numfmt::population(s.population)),
@@ -175,12 +233,25 @@ fn leak_sections(r: &VetReport) -> Vec<Section> {
     sections
 }
 
-/// The remedy sentence of a flagged level.
+/// The "from" cell of a source: the level, and for a decay source the
+/// decaying level the drive excites ("g1, via e by decay").
+fn source_from(s: &SourceRow) -> String {
+    match (&s.channel, &s.via) {
+        (Channel::Decay, Some(via)) => format!("{}, via {via} by decay", s.from),
+        _ => s.from.clone(),
+    }
+}
+
+/// The remedy sentence of a flagged level: each exact check in brackets,
+/// or the reason it could not be run.
 fn remedy_text(l: &LevelRow, m: &RemedyRow) -> String {
-    let exact = |x: Option<f64>| {
-        x.map_or_else(String::new, |v| {
-            format!(" (exact {})", numfmt::population(v).plain())
-        })
+    let exact = |x: Option<f64>, check: RemedyCheck| match x {
+        Some(v) => format!(" (exact {})", numfmt::population(v).plain()),
+        None => m
+            .not_checked
+            .iter()
+            .find(|u| u.check == check)
+            .map_or_else(String::new, |u| format!(" (not checked: {})", u.reason)),
     };
     let length = match m.length_for_tolerance {
         Some(t) => format!(
@@ -189,7 +260,7 @@ fn remedy_text(l: &LevelRow, m: &RemedyRow) -> String {
             numfmt::time(t).plain(),
             numfmt::time(m.present_length).plain(),
             numfmt::population(l.tolerance).plain(),
-            exact(m.exact_at_length)
+            exact(m.exact_at_length, RemedyCheck::AtLength)
         ),
         None => format!(
             "no {} pulse length within 1e4 of the present one reaches {}",
@@ -203,9 +274,9 @@ fn remedy_text(l: &LevelRow, m: &RemedyRow) -> String {
         m.field,
         numfmt::time(m.fwhm).plain(),
         numfmt::population(m.gaussian_same_area).plain(),
-        exact(m.exact_gaussian),
+        exact(m.exact_gaussian, RemedyCheck::Gaussian),
         numfmt::population(m.blackman_same_area).plain(),
-        exact(m.exact_blackman),
+        exact(m.exact_blackman, RemedyCheck::Blackman),
         length
     )
 }

@@ -1,74 +1,139 @@
 //! Initial populations, targets and the default tolerance.
 //!
-//! Owns: `initial:` (one level id, or a map of populations summing to 1),
+//! Owns: `initial:` (one level id, a map of populations summing to 1, or
+//! `mixture:` / `superposition:` holding such a map),
 //! `targets:` (known levels, each once, not initially populated) and the
 //! default spectator `tolerance:`. Must not: know of fields or couplings.
 
 use super::super::locate::KeyPath;
-use super::super::raw::{Initial, RawScheme};
+use super::super::raw::{Id, Initial, InitialValue, Ordered, RawScheme, Scalar};
 use super::ctx::Ctx;
 use super::levels::Levels;
 use super::sum_text;
-use crate::model::{DEFAULT_TOLERANCE, POPULATION_SUM_TOLERANCE};
+use crate::model::{InitialKind, DEFAULT_TOLERANCE, POPULATION_SUM_TOLERANCE};
 
-/// The initial population of every level (0 where not given).
-pub(super) fn initial(raw: &RawScheme, ctx: &mut Ctx, levels: &Levels) -> Vec<f64> {
+/// The initial population of every level (0 where not given) and how they
+/// combine: the v1 forms (one id, or a map of populations: coherent), or
+/// `mixture:` / `superposition:` holding such a map.
+pub(super) fn initial(raw: &RawScheme, ctx: &mut Ctx, levels: &Levels) -> (Vec<f64>, InitialKind) {
     let ip = KeyPath::root().k("initial");
     let mut initial = vec![0.0; levels.list.len()];
+    let expected = "a level id, a map of level id: population, or mixture: / superposition: \
+                    holding such a map";
     match &raw.initial {
-        None => ctx.missing(&ip, "a level id, or a map of level id: population"),
+        None => ctx.missing(&ip, expected),
         Some(Initial::One(id)) => {
             if let Some(i) = levels.lookup(ctx, &ip, id) {
                 initial[i] = 1.0;
             }
         }
         Some(Initial::Map(m)) => {
-            if m.0.is_empty() {
-                ctx.push(
-                    &ip,
-                    "a level id, or a map of level id: population",
-                    "an empty map",
-                );
+            if let Some((kind, inner, path)) = explicit_form(ctx, &ip, m) {
+                if let Some(inner) = inner {
+                    populations(ctx, &path, inner, levels, &mut initial);
+                }
+                return (initial, kind);
             }
-            let mut ok = true;
-            let mut seen: Vec<usize> = Vec::new();
-            for (id, p) in &m.0 {
-                let path = ip.k(&id.0);
-                let Some(i) = levels.lookup(ctx, &path, id) else {
-                    ok = false;
-                    continue;
-                };
-                if seen.contains(&i) {
-                    ctx.push(
-                        &path,
-                        "each level once",
-                        format!("'{}' a second time", id.0),
-                    );
-                    ok = false;
-                    continue;
-                }
-                seen.push(i);
-                if p.is_none() {
-                    ctx.missing(&path, "a population (a bare number between 0 and 1)");
-                    ok = false;
-                    continue;
-                }
-                match ctx.population(&path, p) {
-                    Some(v) => initial[i] = v,
-                    None => ok = false,
+            let mut plain: Vec<(Id, Option<Scalar>)> = Vec::new();
+            for (id, v) in &m.0 {
+                match v {
+                    InitialValue::Population(p) => plain.push((id.clone(), p.clone())),
+                    InitialValue::Map(_) => ctx.push(
+                        &ip.k(&id.0),
+                        "a population (a bare number between 0 and 1); a nested map \
+                         belongs under mixture: or superposition:",
+                        "a map",
+                    ),
                 }
             }
-            let sum: f64 = initial.iter().sum();
-            if ok && !m.0.is_empty() && (sum - 1.0).abs() > POPULATION_SUM_TOLERANCE {
-                ctx.push(
-                    &ip,
-                    "initial populations summing to 1 (within 1e-9)",
-                    format!("a sum of {}", sum_text(sum)),
-                );
-            }
+            populations(ctx, &ip, &Ordered(plain), levels, &mut initial);
         }
     }
-    initial
+    (initial, InitialKind::Coherent)
+}
+
+/// A map of level id: population as written.
+type PopulationMap = Ordered<Option<Scalar>>;
+
+/// `mixture: {...}` or `superposition: {...}` as the only entry of the
+/// `initial:` map: its kind, its map (None where it is not a map, with a
+/// message) and its key path. None where the map is the v1 form.
+fn explicit_form<'m>(
+    ctx: &mut Ctx,
+    ip: &KeyPath,
+    m: &'m Ordered<InitialValue>,
+) -> Option<(InitialKind, Option<&'m PopulationMap>, KeyPath)> {
+    let is_form = |id: &Id, v: &InitialValue| {
+        matches!(v, InitialValue::Map(_)) && matches!(id.0.as_str(), "mixture" | "superposition")
+    };
+    let (id, value) = m.0.iter().find(|(id, v)| is_form(id, v))?;
+    let kind = if id.0 == "mixture" {
+        InitialKind::Mixture
+    } else {
+        InitialKind::Superposition
+    };
+    let path = ip.k(&id.0);
+    if m.0.len() > 1 {
+        ctx.push(
+            ip,
+            format!("{} as the only entry of initial", id.0),
+            format!("{} entries", m.0.len()),
+        );
+        return Some((kind, None, path));
+    }
+    match value {
+        InitialValue::Map(inner) => Some((kind, Some(inner), path)),
+        InitialValue::Population(_) => Some((kind, None, path)),
+    }
+}
+
+/// A map of level id: population at `ip`, summing to 1, into `initial`.
+fn populations(
+    ctx: &mut Ctx,
+    ip: &KeyPath,
+    m: &Ordered<Option<Scalar>>,
+    levels: &Levels,
+    initial: &mut [f64],
+) {
+    if m.0.is_empty() {
+        ctx.push(ip, "a map of level id: population", "an empty map");
+    }
+    let mut ok = true;
+    let mut seen: Vec<usize> = Vec::new();
+    for (id, p) in &m.0 {
+        let path = ip.k(&id.0);
+        let Some(i) = levels.lookup(ctx, &path, id) else {
+            ok = false;
+            continue;
+        };
+        if seen.contains(&i) {
+            ctx.push(
+                &path,
+                "each level once",
+                format!("'{}' a second time", id.0),
+            );
+            ok = false;
+            continue;
+        }
+        seen.push(i);
+        if p.is_none() {
+            ctx.missing(&path, "a population (a bare number between 0 and 1)");
+            ok = false;
+            continue;
+        }
+        match ctx.population(&path, p) {
+            Some(v) => initial[i] = v,
+            None => ok = false,
+        }
+    }
+    let sum: f64 = initial.iter().sum();
+    if ok && !m.0.is_empty() && (sum - 1.0).abs() > POPULATION_SUM_TOLERANCE {
+        ctx.push(
+            ip,
+            "initial populations summing to 1 (within 1e-9)",
+            format!("a sum of {}", sum_text(sum)),
+        );
+    }
 }
 
 /// The target levels: known, each once, not initially populated.

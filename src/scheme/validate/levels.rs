@@ -73,6 +73,11 @@ impl Levels {
         Some((a, b))
     }
 
+    /// The index of a level id, without a message.
+    pub fn index_of(&self, id: &str) -> Option<usize> {
+        self.index.get(id).copied()
+    }
+
     /// The level ids in file order.
     pub fn ids(&self) -> &[String] {
         &self.ids
@@ -130,13 +135,7 @@ fn level(
     lvl: Option<&super::super::raw::RawLevel>,
     path: &KeyPath,
 ) -> (Level, bool) {
-    let mut level = Level {
-        id: id.to_string(),
-        label: None,
-        omega: 0.0,
-        gamma: 0.0,
-        tolerance: None,
-    };
+    let mut level = Level::new(id, 0.0);
     let mut ok = false;
     let Some(l) = lvl else {
         ctx.missing(&path.k("energy"), Kind::Energy.expected());

@@ -89,6 +89,8 @@ pub(super) fn report_refusals(ctx: &mut Ctx, names: &Names, problems: &[ModelErr
         Part::Tolerance => root.k("tolerance"),
         Part::Window => root.k("window"),
         Part::Solver => root.k("solver"),
+        Part::Readout => root.k("readout"),
+        Part::Linewidth(i) => field(i).k("linewidth"),
     };
     for p in problems {
         match p {

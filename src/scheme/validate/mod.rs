@@ -20,6 +20,7 @@ mod fields;
 mod initial;
 mod levels;
 mod limits;
+mod open;
 mod window;
 
 use std::collections::HashMap;
@@ -89,7 +90,8 @@ fn first_valid_id(
 
 /// Validate a mirror into a model, collecting every problem in `ctx`.
 pub(crate) fn validate(raw: &RawScheme, ctx: &mut Ctx) -> Option<Model> {
-    let levels = levels::levels(raw, ctx)?;
+    let mut levels = levels::levels(raw, ctx)?;
+    open::level_keys(raw, ctx, &mut levels);
     let field_ids = fields::field_ids(raw, ctx)?;
     let couplings = couplings::couplings(raw, ctx, &levels, &field_ids)?;
     let empty_field = super::raw::RawField::default();
@@ -109,11 +111,15 @@ pub(crate) fn validate(raw: &RawScheme, ctx: &mut Ctx) -> Option<Model> {
         levels: &levels,
     };
     let peak_intensity = fields::strengths(ctx, &strengths, &mut drives);
-    let initial = initial::initial(raw, ctx, &levels);
+    let (initial, initial_kind) = initial::initial(raw, ctx, &levels);
+    let linewidths = open::linewidths(ctx, &field_ids);
     let targets = initial::targets(raw, ctx, &levels, &initial);
     let tolerance = initial::tolerance(raw, ctx);
     let window = window::window(raw, ctx, !field_ids.entries.is_empty(), &infos);
-    let solver = window::solver(raw, ctx);
+    let mut solver = window::solver(raw, ctx);
+    let readout = open::readout(raw, ctx, window);
+    let open_key = open::first_open_key(&levels, &linewidths, initial_kind);
+    solver.dynamics = open::dynamics(raw, ctx, open_key);
 
     if !ctx.diags.is_empty() {
         return None;
@@ -122,7 +128,8 @@ pub(crate) fn validate(raw: &RawScheme, ctx: &mut Ctx) -> Option<Model> {
     let fields: Vec<Field> = infos
         .into_iter()
         .zip(peak_intensity)
-        .map(|(f, pi)| {
+        .zip(linewidths)
+        .map(|((f, pi), linewidth)| {
             Some(Field {
                 id: f.id,
                 omega: f.omega?,
@@ -131,6 +138,7 @@ pub(crate) fn validate(raw: &RawScheme, ctx: &mut Ctx) -> Option<Model> {
                 phase: f.phase,
                 rwa: f.rwa,
                 peak_intensity: pi,
+                linewidth,
             })
         })
         .collect::<Option<Vec<_>>>()?;
@@ -157,6 +165,8 @@ pub(crate) fn validate(raw: &RawScheme, ctx: &mut Ctx) -> Option<Model> {
         .fields(fields)
         .drives(drives)
         .initial(initial)
+        .initial_kind(initial_kind)
+        .readout(readout)
         .targets(targets)
         .tolerance(tolerance)
         .window(window)

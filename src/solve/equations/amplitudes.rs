@@ -8,146 +8,71 @@
 //! piecewise-constant stretch with the loss form Gamma. Must not: step,
 //! record, or decide which stepper runs.
 
+use super::frame::ScaledFrame;
 use crate::hamiltonian::FrameHamiltonian;
 use crate::model::Model;
-use crate::solve::equation::{Clock, Equation, Generator};
-use crate::solve::plan::Piece;
+use crate::solve::equation::{Equation, Generator};
 use num_complex::Complex64;
-use std::cell::RefCell;
 
 const I: Complex64 = Complex64 { re: 0.0, im: 1.0 };
 
-/// A term of the frame Hamiltonian in window time s = (t - t0) / T.
-#[derive(Debug, Clone, Copy)]
-struct ScaledTerm {
-    lower: usize,
-    upper: usize,
-    field: usize,
-    /// Coupling times T.
-    c: Complex64,
-    /// Residual phase rho(s) = (rate + 0.5 sweep s) s, scaled; None: none.
-    residual: Option<(f64, f64)>,
-}
-
 /// The amplitude equation of one model in its frame.
 pub struct Amplitudes<'a> {
-    model: &'a Model,
-    fh: &'a FrameHamiltonian,
-    n: usize,
-    clock: Clock,
-    det0: Vec<f64>,
-    det_rate: Vec<f64>,
-    half_gamma: Vec<f64>,
-    terms: Vec<ScaledTerm>,
-    used_fields: Vec<usize>,
-    pieces: Vec<Piece<'a>>,
-    env: RefCell<Vec<f64>>,
-    /// Midpoint (s) of the current stretch.
-    mid: f64,
+    frame: ScaledFrame<'a>,
 }
 
 impl<'a> Amplitudes<'a> {
     /// The equation of `model` in the frame `fh` (window time from `fh`).
     pub fn new(model: &'a Model, fh: &'a FrameHamiltonian) -> Self {
-        let n = fh.dim();
-        let scale = fh.duration;
-        let terms: Vec<ScaledTerm> = fh
-            .terms
-            .iter()
-            .map(|t| ScaledTerm {
-                lower: t.lower,
-                upper: t.upper,
-                field: t.field,
-                c: t.coupling * scale,
-                residual: t
-                    .residual
-                    .map(|r| (r.rate * scale, r.sweep * scale * scale)),
-            })
-            .collect();
-        let mut used_fields: Vec<usize> = terms.iter().map(|t| t.field).collect();
-        used_fields.sort_unstable();
-        used_fields.dedup();
         Amplitudes {
-            model,
-            fh,
-            n,
-            clock: Clock { t0: fh.t0, scale },
-            det0: fh.levels.iter().map(|l| l.detuning * scale).collect(),
-            det_rate: fh
-                .levels
-                .iter()
-                .map(|l| l.detuning_rate * scale * scale)
-                .collect(),
-            half_gamma: fh.levels.iter().map(|l| l.half_gamma * scale).collect(),
-            terms,
-            used_fields,
-            pieces: model.fields.iter().map(|_| Piece::Zero).collect(),
-            env: RefCell::new(vec![0.0; model.fields.len()]),
-            mid: fh.t0,
+            frame: ScaledFrame::new(model, fh),
         }
     }
 }
 
 impl Equation for Amplitudes<'_> {
     fn dim(&self) -> usize {
-        2 * self.n + 1
+        2 * self.frame.n + 1
     }
 
     fn levels(&self) -> usize {
-        self.n
+        self.frame.n
     }
 
     fn initial_state(&self, y: &mut [f64]) {
         y.fill(0.0);
-        for (k, a) in self.fh.initial_amplitudes(self.model).iter().enumerate() {
+        let fr = &self.frame;
+        for (k, a) in fr.fh.initial_amplitudes(fr.model).iter().enumerate() {
             y[2 * k] = a.re;
             y[2 * k + 1] = a.im;
         }
     }
 
     fn enter_stretch(&mut self, start: f64, end: f64) {
-        let mid = 0.5 * (start + end);
-        self.mid = mid;
-        for &f in &self.used_fields {
-            self.pieces[f] = Piece::of(&self.model.fields[f].envelope, mid);
-        }
+        self.frame.enter_stretch(start, end);
     }
 
     fn rhs(&self, s: f64, y: &[f64], dy: &mut [f64]) {
-        let t = self.clock.absolute(s);
-        let mut env = self.env.borrow_mut();
-        for &f in &self.used_fields {
-            env[f] = self.pieces[f].eval(t);
-        }
+        let fr = &self.frame;
         let mut lost = 0.0;
-        for k in 0..self.n {
+        for k in 0..fr.n {
             let (x, v) = (y[2 * k], y[2 * k + 1]);
-            let d = self.det0[k] + self.det_rate[k] * s;
-            let g = self.half_gamma[k];
+            let d = fr.detuning(k, s);
+            let g = fr.half_gamma[k];
             // -i d a - g a
             dy[2 * k] = d * v - g * x;
             dy[2 * k + 1] = -d * x - g * v;
             lost += 2.0 * g * (x * x + v * v);
         }
-        dy[2 * self.n] = lost;
-        for term in &self.terms {
-            let e = env[term.field];
-            if e == 0.0 {
-                continue;
-            }
-            let mut g = term.c * e;
-            if let Some((rate, sweep)) = term.residual {
-                let (sn, cs) = ((rate + 0.5 * sweep * s) * s).sin_cos();
-                g *= Complex64::new(cs, -sn);
-            }
-            let (a, b) = (term.lower, term.upper);
+        dy[2 * fr.n] = lost;
+        fr.for_each_coupling(s, |a, b, g| {
             let (xa, ya, xb, yb) = (y[2 * a], y[2 * a + 1], y[2 * b], y[2 * b + 1]);
             // da_b/ds += -i g a_a ; da_a/ds += -i conj(g) a_b
             dy[2 * b] += g.re * ya + g.im * xa;
             dy[2 * b + 1] -= g.re * xa - g.im * ya;
             dy[2 * a] += g.re * yb - g.im * xb;
             dy[2 * a + 1] -= g.re * xb + g.im * yb;
-        }
+        });
     }
 
     #[inline]
@@ -179,35 +104,36 @@ impl Equation for Amplitudes<'_> {
     }
 
     fn norm(&self, y: &[f64]) -> f64 {
-        y[..2 * self.n].iter().map(|v| v * v).sum()
+        y[..2 * self.frame.n].iter().map(|v| v * v).sum()
     }
 
     fn lost(&self, y: &[f64]) -> f64 {
-        y[2 * self.n]
+        y[2 * self.frame.n]
     }
 
     /// -i H of the current stretch (envelopes at its midpoint; the frame
     /// detunings at the window start: a piecewise-constant frame Hamiltonian
     /// has no detuning rate), and q = Gamma.
     fn generator(&self, out: &mut Generator) -> bool {
-        let n = self.n;
+        let n = self.frame.n;
         if out.matrix.nrows() != n || out.matrix.ncols() != n || out.loss.len() != n {
             *out = Generator::zeros(n);
         }
         let (h, loss) = (&mut out.matrix, &mut out.loss);
-        let mut env = self.env.borrow_mut();
-        for t in &self.fh.terms {
-            env[t.field] = Piece::of(&self.model.fields[t.field].envelope, self.mid).eval(self.mid);
-        }
         h.fill(Complex64::new(0.0, 0.0));
-        for (k, l) in self.fh.levels.iter().enumerate() {
-            h[(k, k)] = Complex64::new(l.detuning_at(0.0), -l.half_gamma);
-            loss[k] = 2.0 * l.half_gamma;
+        let mut diag = vec![(0.0, 0.0); n];
+        let mut elems = Vec::with_capacity(self.frame.terms.len());
+        self.frame.stretch_elements(
+            |k, d, hg| diag[k] = (d, hg),
+            |a, b, g| elems.push((a, b, g)),
+        );
+        for (k, &(d, hg)) in diag.iter().enumerate() {
+            h[(k, k)] = Complex64::new(d, -hg);
+            loss[k] = 2.0 * hg;
         }
-        for t in &self.fh.terms {
-            let g = t.coupling * env[t.field];
-            h[(t.upper, t.lower)] += g;
-            h[(t.lower, t.upper)] += g.conj();
+        for (a, b, g) in elems {
+            h[(b, a)] += g;
+            h[(a, b)] += g.conj();
         }
         for z in h.iter_mut() {
             *z = -I * *z;
@@ -216,6 +142,6 @@ impl Equation for Amplitudes<'_> {
     }
 
     fn generator_dim(&self) -> usize {
-        self.n
+        self.frame.n
     }
 }

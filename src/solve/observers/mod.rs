@@ -3,11 +3,12 @@
 //! Owns: the [`Observer`] trait, the [`Step`] a stepper hands over after
 //! every accepted step (or exact sub-step), and [`ObserverSet`], the
 //! observers one run asks for (samples, peaks only when the output shows
-//! them, norm always). Must not: advance anything, or know which equation
+//! them, norm and positivity always). Must not: advance anything, or know which equation
 //! or stepper runs (they read states only through [`Equation`]).
 
 pub mod norm;
 pub mod peaks;
+pub mod positivity;
 pub mod samples;
 
 use super::equation::Equation;
@@ -72,6 +73,7 @@ pub struct ObserverSet {
     /// None: peaks are not tracked (scans, tune).
     pub peaks: Option<peaks::Peaks>,
     pub norm: norm::NormDrift,
+    pub positivity: positivity::Positivity,
 }
 
 impl ObserverSet {
@@ -81,6 +83,7 @@ impl ObserverSet {
             samples: samples::Samples::new(levels, samples),
             peaks: peaks.then(|| peaks::Peaks::new(levels)),
             norm: norm::NormDrift::default(),
+            positivity: positivity::Positivity::default(),
         }
     }
 }
@@ -92,6 +95,7 @@ impl<E: Equation + ?Sized> Observer<E> for ObserverSet {
             p.start(eq, y);
         }
         self.norm.start(eq, y);
+        self.positivity.start(eq, y);
     }
 
     #[inline]
@@ -100,6 +104,7 @@ impl<E: Equation + ?Sized> Observer<E> for ObserverSet {
             p.step(eq, step, dense);
         }
         self.norm.step(eq, step, dense);
+        self.positivity.step(eq, step, dense);
     }
 
     fn sample(&mut self, eq: &E, t: f64, y: &[f64]) {

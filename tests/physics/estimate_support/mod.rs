@@ -63,13 +63,7 @@ impl Builder {
 
     /// A level with energy E/hbar = omega (rad/s).
     pub fn level(mut self, id: &str, omega: f64) -> Self {
-        self.levels.push(Level {
-            id: id.into(),
-            label: None,
-            omega,
-            gamma: 0.0,
-            tolerance: None,
-        });
+        self.levels.push(Level::new(id, omega));
         self.initial.push(0.0);
         self
     }
@@ -107,6 +101,7 @@ impl Builder {
             phase: 0.0,
             rwa: true,
             peak_intensity: None,
+            linewidth: 0.0,
         });
         self
     }

@@ -51,11 +51,8 @@ impl Builder {
     /// A level with energy omega (rad/s) and decay rate gamma (1/s).
     pub fn level(mut self, id: &str, omega: f64, gamma: f64) -> Self {
         self.levels.push(Level {
-            id: id.into(),
-            label: None,
-            omega,
             gamma,
-            tolerance: None,
+            ..Level::new(id, omega)
         });
         self.initial.push(0.0);
         self
@@ -102,6 +99,7 @@ impl Builder {
             phase,
             rwa,
             peak_intensity: None,
+            linewidth: 0.0,
         });
         self
     }
