@@ -8,7 +8,7 @@
 //!
 //! Run: `cargo bench --bench propagation` (see docs/performance.md).
 
-#[path = "../tests/solve_support/mod.rs"]
+#[path = "../tests/physics/solve_support/mod.rs"]
 mod solve_support;
 
 use criterion::{criterion_group, criterion_main, BenchmarkId, Criterion};

@@ -1,8 +1,8 @@
 #!/usr/bin/env bash
 # Seed the fuzz corpora (fuzz/corpus/<target>/, not committed) from the demo
 # schemes and the YAML snippets of the tests: every raw string literal
-# (r#"..."#) of tests/scheme_errors.rs, tests/scheme_robustness.rs and
-# tests/regressions.rs, and the BASE scheme of tests/scheme_errors.rs with each
+# (r#"..."#) of tests/scheme/scheme_errors.rs, tests/scheme/scheme_robustness.rs and
+# tests/regressions/regressions.rs, and the BASE scheme of tests/scheme/scheme_errors.rs with each
 # with("from", "to") replacement applied. Needs bash and python3.
 #
 # Usage: scripts/fuzz-seed.sh            (from the repository root)
@@ -40,11 +40,11 @@ def rust_str(lit):
 raw = re.compile(r'r#"(.*?)"#', re.S)
 plain = r'"((?:[^"\\]|\\.)*)"'
 pair = re.compile(r'with\(\s*' + plain + r'\s*,\s*' + plain + r'\s*,?\s*\)', re.S)
-for name in ["tests/scheme_errors.rs", "tests/scheme_robustness.rs", "tests/regressions.rs"]:
+for name in ["tests/scheme/scheme_errors.rs", "tests/scheme/scheme_robustness.rs", "tests/regressions/regressions.rs"]:
     src = (root / name).read_text()
     bodies = raw.findall(src)
     seeds += [b.encode() for b in bodies]
-    if name == "tests/scheme_errors.rs":
+    if name == "tests/scheme/scheme_errors.rs":
         base = bodies[0]
         for a, b in pair.findall(src):
             a, b = rust_str(a), rust_str(b)

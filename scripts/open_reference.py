@@ -7,7 +7,7 @@ fields.<id>.linewidth, initial: {mixture: ...}) and <name>.json (the
 reference result of each scheme), the steady-state and transient check
 schemes tests/fixtures/open/obe_*.yaml, and tests/fixtures/open/analytic.json
 (closed forms of the optical Bloch equations with their sources). The Rust
-test tests/open_reference.rs reads these files; it never runs Python.
+test tests/physics/open_reference.rs reads these files; it never runs Python.
 
 All schemes are invented and illustrative: no real species, no measured data.
 

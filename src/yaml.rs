@@ -23,7 +23,10 @@
 use serde::de::{self, DeserializeOwned, Deserializer, MapAccess, SeqAccess, Visitor};
 use serde::Deserialize;
 use serde_saphyr::budget::BudgetBreach;
-use serde_saphyr::{DuplicateKeyPolicy, Error as LibError, NonFiniteFloatPolicy, Options};
+use serde_saphyr::granit_parser::ErrorKind as ParserErrorKind;
+use serde_saphyr::{
+    DuplicateKeyPolicy, Error as LibError, ExternalMessageSource, NonFiniteFloatPolicy, Options,
+};
 use std::fmt;
 
 mod tree;
@@ -355,6 +358,12 @@ fn translate(e: &LibError, text: &str) -> YamlError {
                 format!("the key '{}' twice", key.as_deref().unwrap_or("?")),
             )
         }
+        // serde-saphyr 2.2.0 does not override serde's
+        // `de::Error::duplicate_field`, whose default goes through `custom`
+        // with the text "duplicate field `NAME`": it arrives as a plain
+        // `Message`, so serde's fixed wording is the only handle on it
+        // (`DuplicateMappingKey` is the reader's own check, off here: the
+        // policy passes duplicates on so that the validator names both places).
         LibError::Message { msg, .. } if msg.starts_with("duplicate field `") => {
             let key = msg["duplicate field `".len()..]
                 .trim_end_matches('`')
@@ -373,18 +382,22 @@ fn translate(e: &LibError, text: &str) -> YamlError {
             "an alias to an anchor defined before it".to_string(),
             "an alias to no anchor".to_string(),
         ),
-        _ => {
-            let m = msg();
-            if m.contains("recursion limit exceeded") || m.contains("nesting limit") {
-                too_deep()
-            } else {
-                (
-                    K::Syntax,
-                    "valid YAML".to_string(),
-                    format!("a syntax error: {m}"),
-                )
-            }
+        // The parser's own nesting limits (flow and block, set to
+        // MAX_DEPTH through the budget) come as its typed error kind.
+        LibError::ExternalMessage { source, .. }
+            if matches!(
+                source.as_ref(),
+                ExternalMessageSource::Parser(scan)
+                    if matches!(scan.kind(), ParserErrorKind::RecursionLimitExceeded)
+            ) =>
+        {
+            too_deep()
         }
+        _ => (
+            K::Syntax,
+            "valid YAML".to_string(),
+            format!("a syntax error: {}", msg()),
+        ),
     };
     let mut err = YamlError {
         kind,

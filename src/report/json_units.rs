@@ -7,7 +7,7 @@
 //! named after the unit it writes. Must not: round, or change anything but
 //! the unit; the arithmetic here is the documented unit change only, done
 //! in the same order as before the reports derived `Serialize` so that the
-//! output keeps every bit (tests/json_golden.rs).
+//! output keeps every bit (tests/cli/json_golden.rs).
 
 use crate::estimate::Order;
 use crate::model::{Dynamics, InitialKind, Readout};

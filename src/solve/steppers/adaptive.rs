@@ -21,7 +21,8 @@
 //! (steps collapse and the solver aborts with a spurious stiffness error).
 //! Every system here is therefore made autonomous: time is carried as the
 //! last state component with d t / d t = 1 and the solver's own time argument
-//! is ignored. `tests/propagation_dop853.rs` fails if the workaround is removed.
+//! is ignored. `tests/physics/propagation_dop853.rs` fails if the workaround
+//! is removed.
 //! Its stiffness test also fires on long oscillatory runs, so it is switched
 //! off (n_stiff = u32::MAX).
 

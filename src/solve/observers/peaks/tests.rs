@@ -222,7 +222,8 @@ fn refined_interior_uses_dense_states() {
 
 // A maximum between the first two samples was missed (the end sample was
 // taken as the peak), losing about P'' d^2 / 8 of a peak population; found
-// by `tests/properties.rs` (exact vs adaptive peaks differed by 1.2e-7).
+// by `tests/regressions/properties.rs` (exact vs adaptive peaks differed by
+// 1.2e-7).
 // p(x) = 1 - (x - x0)^2 is a parabola, so the refined value must be 1 to
 // rounding (elementary algebra).
 #[test]

@@ -1,11 +1,9 @@
 //! Computed remedies for leaks, checked against the closed forms they must
 //! reproduce. Illustrative, invented schemes.
 
-mod estimate_support;
-
 use std::f64::consts::PI;
 
-use estimate_support::{rect, rel, tau, Builder};
+use crate::estimate_support::{rect, rel, tau, Builder};
 use levelplan::estimate::{estimate, intensity_fwhm, remedy, EstimateError, LengthRule};
 use levelplan::model::{Envelope, Model, Window};
 

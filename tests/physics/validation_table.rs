@@ -9,9 +9,9 @@
 //!   nor in `NOT_PHYSICS` below (each entry with its reason),
 //! - an entry of `NOT_PHYSICS` no longer exists, or is also in the table.
 //!
-//! The physics test files: `tests/units_constants.rs`, `tests/propagation_*.rs`,
-//! `tests/estimate*.rs`, `tests/vet_physics.rs`, `tests/demo_schemes.rs`, and
-//! the unit tests of `src/model/**`, `src/units/mod.rs`, `src/hamiltonian.rs`,
+//! The physics test files: every module of the `physics` test binary
+//! (`tests/physics/*.rs` but its `main.rs` and this file), and the unit tests
+//! of `src/model/**`, `src/units/mod.rs`, `src/hamiltonian.rs`,
 //! `src/report.rs`, `src/tune.rs`, `src/solve/*.rs`, `src/estimate/*.rs`.
 //! New files matching these patterns are covered automatically.
 
@@ -21,47 +21,55 @@ use std::path::Path;
 /// Tests in the physics files that check no physics, with the reason.
 const NOT_PHYSICS: &[(&str, &str)] = &[
     (
-        "tests/propagation_budget.rs::step_budget_fails_fast_naming_the_drive",
+        "tests/physics/open_reference.rs::every_open_fixture_is_checked",
+        "bookkeeping: every fixture file has a test",
+    ),
+    (
+        "tests/physics/open_reference.rs::the_comparison_accepts_the_reference_and_catches_changes",
+        "checks the comparison code, not the physics",
+    ),
+    (
+        "tests/physics/propagation_budget.rs::step_budget_fails_fast_naming_the_drive",
         "error path: the step budget stops at once and names the drive",
     ),
     (
-        "tests/propagation_budget.rs::step_budget_is_enforced_during_the_run",
+        "tests/physics/propagation_budget.rs::step_budget_is_enforced_during_the_run",
         "bookkeeping of the step budget",
     ),
     (
-        "tests/propagation_budget.rs::exact_method_names_why_it_does_not_apply",
+        "tests/physics/propagation_budget.rs::exact_method_names_why_it_does_not_apply",
         "error message",
     ),
     (
-        "tests/propagation_budget.rs::non_finite_input_is_an_error_not_a_nan",
+        "tests/physics/propagation_budget.rs::non_finite_input_is_an_error_not_a_nan",
         "error path",
     ),
     (
-        "tests/propagation_budget.rs::empty_window_is_refused_by_the_builder",
+        "tests/physics/propagation_budget.rs::empty_window_is_refused_by_the_builder",
         "error path",
     ),
     (
-        "tests/propagation_dop853.rs::naive_dop853_with_time_dependent_rhs_is_wrong",
+        "tests/physics/propagation_dop853.rs::naive_dop853_with_time_dependent_rhs_is_wrong",
         "documents a defect of the ode_solvers dependency",
     ),
     (
-        "tests/estimate.rs::unreached_level_is_zero",
+        "tests/physics/estimate.rs::unreached_level_is_zero",
         "bookkeeping of the order column",
     ),
     (
-        "tests/estimate.rs::bad_models_are_errors_not_nan",
+        "tests/physics/estimate.rs::bad_models_are_errors_not_nan",
         "error path",
     ),
     (
-        "tests/estimate_remedy.rs::remedy_arguments_are_checked",
+        "tests/physics/estimate_remedy.rs::remedy_arguments_are_checked",
         "argument checks",
     ),
     (
-        "tests/demo_schemes.rs::every_demo_parses_and_is_labelled_illustrative",
+        "tests/physics/demo_schemes.rs::every_demo_parses_and_is_labelled_illustrative",
         "labels and safety notes of the demo files",
     ),
     (
-        "tests/demo_schemes.rs::complete_example_in_the_format_reference_parses",
+        "tests/physics/demo_schemes.rs::complete_example_in_the_format_reference_parses",
         "the format reference's example parses",
     ),
     (
@@ -138,15 +146,9 @@ fn physics_files() -> Vec<String> {
         v.sort();
         v
     };
-    for name in list("tests") {
-        let stem = name.trim_end_matches(".rs");
-        if stem == "units_constants"
-            || stem.starts_with("propagation_")
-            || stem.starts_with("estimate")
-            || stem == "vet_physics"
-            || stem == "demo_schemes"
-        {
-            files.push(format!("tests/{name}"));
+    for name in list("tests/physics") {
+        if name != "main.rs" && name != "validation_table.rs" {
+            files.push(format!("tests/physics/{name}"));
         }
     }
     for f in [

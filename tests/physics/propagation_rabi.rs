@@ -3,11 +3,9 @@
 //! (I. I. Rabi, Phys. Rev. 51, 652 (1937); any quantum-optics textbook).
 //! Numbers are invented, illustrative values.
 
-mod solve_support;
-
+use crate::solve_support::*;
 use levelplan::model::Method;
 use levelplan::solve::{solve, MethodUsed, SolveOptions};
-use solve_support::*;
 
 const OMEGA0: f64 = 2.0 * std::f64::consts::PI * 431.2e12; // invented optical transition
 

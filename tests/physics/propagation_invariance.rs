@@ -1,11 +1,9 @@
 //! Invariances of the propagation and agreement of the two propagators.
 //! Numbers are invented, illustrative values.
 
-mod solve_support;
-
+use crate::solve_support::*;
 use levelplan::model::{Envelope, Method, Model};
 use levelplan::solve::{solve, MethodUsed, SolveError, SolveOptions};
-use solve_support::*;
 
 const W_E: f64 = 2.0 * std::f64::consts::PI * 402.7e12; // invented
 const W_R: f64 = 2.0 * std::f64::consts::PI * 781.3e12; // invented

@@ -1,5 +1,5 @@
 //! Regression tests: one per defect found by the property tests
-//! (`tests/properties.rs`), by fuzzing (`fuzz/`, see `docs/reliability.md`)
+//! (`tests/regressions/properties.rs`), by fuzzing (`fuzz/`, see `docs/reliability.md`)
 //! and in review.
 //! Each test is named after what was found and fails on the code before the
 //! fix. All schemes are invented, illustrative numbers.

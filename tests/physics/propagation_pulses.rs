@@ -1,12 +1,10 @@
 //! Shaped, chirped and decaying pulses against closed-form results from the
 //! literature. Numbers are invented, illustrative values.
 
-mod solve_support;
-
+use crate::solve_support::*;
 use levelplan::model::{Envelope, Method};
 use levelplan::solve::adaptive::{integrate_autonomous, AdaptiveSettings, AutonomousRhs};
 use levelplan::solve::{solve, MethodUsed, SolveOptions};
-use solve_support::*;
 use std::f64::consts::PI;
 
 const OMEGA0: f64 = 2.0 * PI * 377.1e12; // invented optical transition

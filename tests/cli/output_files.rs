@@ -3,9 +3,7 @@
 //! successful run replaces it entirely. (`output::write_atomic`: temporary
 //! file in the same directory, then rename.)
 
-mod cli_support;
-
-use cli_support::{bin, others, refused, scratch};
+use crate::cli_support::{bin, others, refused, scratch};
 use std::path::Path;
 use std::time::{Duration, Instant};
 

@@ -3,9 +3,7 @@
 //! that name the stage; every report states the solver tolerances it used.
 //! Schemes are invented, illustrative numbers.
 
-mod cli_support;
-
-use cli_support::{bin, refused, scratch};
+use crate::cli_support::{bin, refused, scratch};
 use levelplan::error::Error;
 use levelplan::pipeline::{check_solution, vet_model, NORM_ERROR_LIMIT};
 use levelplan::report::Provenance;

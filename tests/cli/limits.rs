@@ -4,9 +4,7 @@
 //! or touching an output file. The limits and their values are listed in
 //! `docs/reliability.md`. Schemes are invented, illustrative numbers.
 
-mod cli_support;
-
-use cli_support::{bin, refused, scratch};
+use crate::cli_support::{bin, refused, scratch};
 use std::time::Instant;
 
 /// `n` levels, no fields.

@@ -5,8 +5,8 @@
 //! JSON keys are added, never renamed (docs/output-format.md): a failure here
 //! means a key, its order, its unit or a number changed. If a change is
 //! deliberate (a new key, a physics correction), regenerate the files with
-//! `LEVELPLAN_BLESS_JSON=1 cargo test --release --test json_golden` and say
-//! so in the commit message.
+//! `LEVELPLAN_BLESS_JSON=1 cargo test --release --test cli json_golden::` and
+//! say so in the commit message.
 
 use std::path::Path;
 use std::process::Command;

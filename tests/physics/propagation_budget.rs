@@ -1,11 +1,9 @@
 //! Step budget, errors and bookkeeping of the propagators.
 //! Numbers are invented, illustrative values.
 
-mod solve_support;
-
+use crate::solve_support::*;
 use levelplan::model::{Envelope, Method, ModelError, Part, Window};
 use levelplan::solve::{solve, MethodUsed, SolveError, SolveOptions};
-use solve_support::*;
 use std::time::Instant;
 
 const W_E: f64 = 2.0 * std::f64::consts::PI * 355.9e12; // invented

@@ -1,11 +1,9 @@
 //! The perturbative estimator against published and textbook results.
 //! Every scheme here is an invented, illustrative two- or three-level case.
 
-mod estimate_support;
-
 use std::f64::consts::PI;
 
-use estimate_support::{rect, rel, tau, Builder};
+use crate::estimate_support::{rect, rel, tau, Builder};
 use levelplan::estimate::{
     envelope_spectrum, envelope_spectrum_quadrature, estimate, EstimateError, Order,
 };

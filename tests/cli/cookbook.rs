@@ -30,8 +30,8 @@
 //! in order, are lines of that file (an excerpt may skip lines between them).
 //!
 //! To regenerate after a deliberate change, run
-//! `COOKBOOK_BLESS=1 cargo test --release --test cookbook`: it rewrites the
-//! blocks of `docs/cookbook.md` and the plots under `docs/img/` with the new
+//! `COOKBOOK_BLESS=1 cargo test --release --test cli cookbook::`: it rewrites
+//! the blocks of `docs/cookbook.md` and the plots under `docs/img/` with the new
 //! output. Read the diff: the prose around the blocks quotes numbers too.
 
 use std::path::{Path, PathBuf};

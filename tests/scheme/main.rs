@@ -1,0 +1,6 @@
+//! The scheme reader, one test binary: every bad input of the format with
+//! its located error, the YAML reader's budgets and deliberate readings.
+//! Run one module with `cargo test --release --test scheme scheme_errors::`.
+
+mod scheme_errors;
+mod scheme_robustness;
