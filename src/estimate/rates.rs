@@ -92,7 +92,8 @@ pub(crate) fn decay_sources(ctx: &Ctx<'_>) -> Result<Vec<(usize, DecaySource)>, 
         let c = &m.couplings[d.coupling];
         for (from, via) in [(c.lower, c.upper), (c.upper, c.lower)] {
             let e = &m.levels[via];
-            if ctx.p(from) <= 0.0 || e.gamma <= 0.0 || e.decays_to.is_empty() {
+            let branches = m.branches(via);
+            if ctx.p(from) <= 0.0 || e.gamma <= 0.0 || branches.is_empty() {
                 continue;
             }
             let a = &m.levels[from];
@@ -111,8 +112,7 @@ pub(crate) fn decay_sources(ctx: &Ctx<'_>) -> Result<Vec<(usize, DecaySource)>, 
             };
             let scattered = finite(ctx.p(from) * rate * length, what)?;
             finite(saturation, what)?;
-            let back: f64 = e
-                .decays_to
+            let back: f64 = branches
                 .iter()
                 .filter(|(k, _)| *k == from)
                 .map(|(_, b)| b)
@@ -120,7 +120,7 @@ pub(crate) fn decay_sources(ctx: &Ctx<'_>) -> Result<Vec<(usize, DecaySource)>, 
             let reliable = saturation <= SATURATION_LIMIT
                 && scattered * (1.0 - back) <= DEPLETION_LIMIT
                 && width * length >= MIN_WIDTH_TIMES_LENGTH;
-            for &(k, b) in &e.decays_to {
+            for &(k, b) in &branches {
                 if ctx.p(k) > 0.0 {
                     continue;
                 }

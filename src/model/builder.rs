@@ -15,52 +15,14 @@
 
 use std::collections::HashSet;
 
+pub use super::part::Part;
 use super::{
-    Coupling, Drive, Field, InitialKind, Level, Model, Readout, SolverSettings, Window,
+    Coupling, Drive, Field, InitialKind, Jump, Level, Model, Readout, SolverSettings, Window,
     DEFAULT_TOLERANCE,
 };
 
 /// Largest miss of 1 that the initial populations may sum to.
 pub const POPULATION_SUM_TOLERANCE: f64 = 1e-9;
-
-/// Which part of a model a problem is in (indices into the builder's lists).
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
-pub enum Part {
-    Level(usize),
-    Coupling(usize),
-    Field(usize),
-    /// The envelope of a field.
-    Envelope(usize),
-    Drive(usize),
-    Initial,
-    Target(usize),
-    Tolerance,
-    Window,
-    Solver,
-    /// The readout time.
-    Readout,
-    /// The linewidth of a field.
-    Linewidth(usize),
-}
-
-impl std::fmt::Display for Part {
-    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
-        match self {
-            Part::Level(i) => write!(f, "level {i}"),
-            Part::Coupling(i) => write!(f, "coupling {i}"),
-            Part::Field(i) => write!(f, "field {i}"),
-            Part::Envelope(i) => write!(f, "the envelope of field {i}"),
-            Part::Drive(i) => write!(f, "drive {i}"),
-            Part::Initial => write!(f, "the initial populations"),
-            Part::Target(i) => write!(f, "target {i}"),
-            Part::Tolerance => write!(f, "the tolerance"),
-            Part::Window => write!(f, "the window"),
-            Part::Solver => write!(f, "the solver settings"),
-            Part::Readout => write!(f, "the readout"),
-            Part::Linewidth(i) => write!(f, "the linewidth of field {i}"),
-        }
-    }
-}
 
 /// Why a model was refused.
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]
@@ -90,6 +52,7 @@ pub struct ModelBuilder {
     tolerance: Option<f64>,
     window: Option<Window>,
     solver: SolverSettings,
+    jumps: Vec<Jump>,
 }
 
 impl Model {
@@ -114,6 +77,7 @@ impl Model {
             tolerance: Some(self.tolerance),
             window: Some(self.window),
             solver: self.solver,
+            jumps: self.jumps.clone(),
         }
     }
 }
@@ -193,6 +157,11 @@ impl ModelBuilder {
         self.solver = solver;
         self
     }
+    /// Coherent spontaneous-emission channels (checked in `open.rs`).
+    pub fn jumps(mut self, jumps: Vec<Jump>) -> Self {
+        self.jumps = jumps;
+        self
+    }
 
     /// The model, or its first problem.
     pub fn build(self) -> Result<Model, ModelError> {
@@ -227,6 +196,7 @@ impl ModelBuilder {
             tolerance: self.tolerance.unwrap_or(DEFAULT_TOLERANCE),
             window,
             solver: self.solver,
+            jumps: self.jumps,
         };
         let mut problems = non_finite(&model);
         if problems.is_empty() {

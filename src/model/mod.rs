@@ -18,6 +18,7 @@ mod builder;
 pub mod envelope;
 mod field;
 pub mod open;
+mod part;
 
 pub use builder::{ModelBuilder, ModelError, Part, POPULATION_SUM_TOLERANCE};
 pub use envelope::{
@@ -64,6 +65,30 @@ pub struct Model {
     pub(crate) window: Window,
     /// Solver settings.
     pub(crate) solver: SolverSettings,
+    /// Coherent spontaneous-emission channels (generated from angular
+    /// momentum; one per polarisation and pair of manifolds).
+    pub(crate) jumps: Vec<Jump>,
+}
+
+/// A coherent spontaneous-emission channel, the jump operator
+/// L = sum_t a_t |lower_t><upper_t| of the Lindblad equation (a_t in
+/// s^-1/2). Its terms share one photon polarisation, so the amplitudes of
+/// different pairs add coherently: sum_t a_t^2 over the terms leaving a
+/// level is the part of that level's decay rate the channel carries.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Jump {
+    /// What the channel is, for reports (e.g. "P -> S, q = +1").
+    pub label: String,
+    pub terms: Vec<JumpTerm>,
+}
+
+/// One term a |lower><upper| of a [`Jump`].
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct JumpTerm {
+    pub lower: usize,
+    pub upper: usize,
+    /// Amplitude (s^-1/2), signed.
+    pub amplitude: f64,
 }
 
 /// One level.
@@ -100,7 +125,8 @@ impl Level {
         }
     }
 
-    /// Fraction of the decay that leaves the scheme (1 - sum of branches).
+    /// Fraction of the decay that leaves the scheme (1 - sum of branches),
+    /// not counting coherent channels ([`Model::lost_fraction`] does).
     pub fn lost_fraction(&self) -> f64 {
         (1.0 - self.decays_to.iter().map(|d| d.1).sum::<f64>()).max(0.0)
     }
@@ -272,10 +298,56 @@ impl Model {
     pub fn readout(&self) -> Readout {
         self.readout
     }
+    /// Coherent spontaneous-emission channels.
+    pub fn jumps(&self) -> &[Jump] {
+        &self.jumps
+    }
+    /// Fraction of level k's decay that leaves the scheme: what neither its
+    /// branching nor the coherent channels carry (0 for a stable level).
+    pub fn lost_fraction(&self, k: usize) -> f64 {
+        let l = &self.levels[k];
+        if l.gamma <= 0.0 {
+            return 0.0;
+        }
+        (l.lost_fraction() - self.channel_rate(k) / l.gamma).max(0.0)
+    }
+    /// Where level k's decay goes, as fractions of its rate: its branching
+    /// and the coherent channels' population flow (sum_t a_t^2 per lower
+    /// level), one entry per lower level, in level order.
+    pub fn branches(&self, k: usize) -> Vec<(usize, f64)> {
+        let l = &self.levels[k];
+        if l.gamma <= 0.0 {
+            return Vec::new();
+        }
+        let mut by_level = vec![0.0; self.levels.len()];
+        for &(j, b) in &l.decays_to {
+            by_level[j] += b;
+        }
+        for t in self.jumps.iter().flat_map(|j| &j.terms) {
+            if t.upper == k {
+                by_level[t.lower] += t.amplitude * t.amplitude / l.gamma;
+            }
+        }
+        by_level
+            .into_iter()
+            .enumerate()
+            .filter(|(_, b)| *b > 0.0)
+            .collect()
+    }
+    /// Decay rate (1/s) of level k carried by the coherent channels.
+    pub fn channel_rate(&self, k: usize) -> f64 {
+        self.jumps
+            .iter()
+            .flat_map(|j| &j.terms)
+            .filter(|t| t.upper == k)
+            .map(|t| t.amplitude * t.amplitude)
+            .sum()
+    }
     /// Whether the scheme uses an open-system key: decay branching,
-    /// dephasing, a laser linewidth or a mixture.
+    /// dephasing, a laser linewidth, a mixture or coherent decay channels.
     pub fn has_open_keys(&self) -> bool {
         self.initial_kind == InitialKind::Mixture
+            || !self.jumps.is_empty()
             || self
                 .levels
                 .iter()

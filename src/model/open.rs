@@ -173,8 +173,48 @@ fn invalid(out: &mut Vec<ModelError>, at: Part, reason: impl Into<String>) {
     });
 }
 
+/// The coherent channels: terms between existing levels, downwards, finite
+/// amplitudes, and no level losing more through its branching and channels
+/// than its decay rate.
+fn check_jumps(m: &Model, out: &mut Vec<ModelError>) {
+    let n = m.levels.len();
+    for (i, j) in m.jumps.iter().enumerate() {
+        for t in &j.terms {
+            if t.lower >= n || t.upper >= n || m.levels[t.lower].omega >= m.levels[t.upper].omega {
+                invalid(
+                    out,
+                    Part::Jump(i),
+                    "a term that does not go to a lower level",
+                );
+                return;
+            }
+            if !t.amplitude.is_finite() {
+                invalid(out, Part::Jump(i), "an amplitude that is not finite");
+                return;
+            }
+        }
+    }
+    for (k, l) in m.levels.iter().enumerate() {
+        let carried = m.channel_rate(k);
+        if carried == 0.0 {
+            continue;
+        }
+        let room = l.gamma * (1.0 - l.decays_to.iter().map(|d| d.1).sum::<f64>());
+        if carried > room * (1.0 + BRANCHING_SUM_TOLERANCE) + f64::MIN_POSITIVE {
+            invalid(
+                out,
+                Part::Level(k),
+                format!(
+                    "decay channels carrying {carried:e} /s where its decay rate leaves {room:e} /s"
+                ),
+            );
+        }
+    }
+}
+
 /// The builder's checks of the open-system parts.
 pub(super) fn check(m: &Model, out: &mut Vec<ModelError>) {
+    check_jumps(m, out);
     let n = m.levels.len();
     for (i, l) in m.levels.iter().enumerate() {
         if !(l.dephasing.is_finite() && l.dephasing >= 0.0) {

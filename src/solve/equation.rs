@@ -136,6 +136,13 @@ pub trait Equation {
     fn scattered_photons(&self, _y: &[f64], _out: &mut [f64]) -> bool {
         false
     }
+    /// The settled populations (drives off, every decay run to its end) of
+    /// state `y` into `out` and the total lost population, where the
+    /// populations alone do not determine them (coherent decay channels);
+    /// `None`: relax the populations through the branching instead.
+    fn settled(&self, _y: &[f64], _out: &mut [f64]) -> Option<f64> {
+        None
+    }
     /// The generator of the current stretch (after
     /// [`Equation::enter_stretch`]) into `out`, or false where the equation
     /// has none there (the exact stepper then does not apply).

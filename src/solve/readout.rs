@@ -50,7 +50,10 @@ impl Readout {
         eq.populations(y, &mut end);
         let end_lost = eq.lost(y);
         let decays = model.levels().iter().any(|l| l.gamma > 0.0);
-        let (settled, settled_lost) = if decays {
+        let mut coherent = vec![0.0; eq.levels()];
+        let (settled, settled_lost) = if let Some(lost) = eq.settled(y, &mut coherent) {
+            (Some(coherent), Some(lost))
+        } else if decays {
             let mut p = end.clone();
             let more = open::settle(model, &mut p);
             (Some(p), Some(end_lost + more))

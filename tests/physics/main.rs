@@ -7,6 +7,7 @@
 mod estimate_support;
 mod solve_support;
 
+mod decay_channels;
 mod demo_schemes;
 mod estimate;
 mod estimate_rates;

@@ -91,6 +91,7 @@ pub(super) fn report_refusals(ctx: &mut Ctx, names: &Names, problems: &[ModelErr
         Part::Solver => root.k("solver"),
         Part::Readout => root.k("readout"),
         Part::Linewidth(i) => field(i).k("linewidth"),
+        Part::Jump(_) => root.k("couplings"),
     };
     for p in problems {
         match p {

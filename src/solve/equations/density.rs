@@ -17,6 +17,7 @@
 //! piecewise-constant stretch for small N. Must not: step, record, or decide
 //! which stepper runs.
 
+use super::channels::{self, Channels};
 use super::frame::ScaledFrame;
 use crate::hamiltonian::FrameHamiltonian;
 use crate::model::{open, InitialKind, Model};
@@ -43,6 +44,8 @@ pub struct DensityMatrix<'a> {
     damping_per_s: Vec<f64>,
     /// Per decaying level: (level, Gamma (1/s), branches (level, fraction), lost fraction).
     decays: Vec<Decay>,
+    /// The coherent decay channels in the frame (unscaled).
+    channels: Channels,
 }
 
 impl<'a> DensityMatrix<'a> {
@@ -61,13 +64,31 @@ impl<'a> DensityMatrix<'a> {
             .iter()
             .enumerate()
             .filter(|(_, l)| l.gamma > 0.0)
-            .map(|(k, l)| (k, l.gamma, l.decays_to.clone(), l.lost_fraction()))
+            .map(|(k, l)| (k, l.gamma, l.decays_to.clone(), model.lost_fraction(k)))
             .collect();
         DensityMatrix {
             damping: damping_per_s.iter().map(|r| r * scale).collect(),
             damping_per_s,
+            channels: Channels::new(model, fh),
             frame,
             decays,
+        }
+    }
+
+    /// The coherent channels' part of the right-hand side (scaled by T).
+    fn add_channels(&self, y: &[f64], dy: &mut [f64]) {
+        let n = self.frame.n;
+        let scale = self.frame.clock.scale;
+        for f in &self.channels.feeds {
+            let z = f.c * scale * get(y, self.at(f.src.0, f.src.1));
+            add(dy, self.at(f.dst.0, f.dst.1), z);
+        }
+        for c in &self.channels.cross {
+            let k = -0.5 * scale * c.k;
+            for m in 0..n {
+                add(dy, self.at(c.e, m), k * get(y, self.at(c.f, m)));
+                add(dy, self.at(m, c.f), k * get(y, self.at(m, c.e)));
+            }
         }
     }
 
@@ -152,6 +173,7 @@ impl Equation for DensityMatrix<'_> {
             dy[base] += lost * rate;
             dy[base + 2 + 2 * e] = rate;
         }
+        self.add_channels(y, dy);
         fr.for_each_coupling(s, |a, b, g| {
             let (mig, migc, ig, igc) = (-I * g, -I * g.conj(), I * g, I * g.conj());
             for m in 0..n {
@@ -188,6 +210,22 @@ impl Equation for DensityMatrix<'_> {
         } else {
             cheap
         }
+    }
+
+    fn settled(&self, y: &[f64], out: &mut [f64]) -> Option<f64> {
+        if self.channels.is_empty() {
+            return None;
+        }
+        let n = self.frame.n;
+        let rho: Vec<Complex64> = (0..n * n).map(|i| get(y, 2 * i)).collect();
+        let more = channels::settle(
+            self.frame.model,
+            &self.channels,
+            &self.damping_per_s,
+            &rho,
+            out,
+        )?;
+        Some(self.lost(y) + more)
     }
 
     fn scattered_photons(&self, y: &[f64], out: &mut [f64]) -> bool {
@@ -242,6 +280,15 @@ impl Equation for DensityMatrix<'_> {
             }
             g[(lost, from)] += gamma * lost_fraction;
             g[(lost + 1 + e, from)] += *gamma;
+        }
+        for f in &self.channels.feeds {
+            g[(idx(f.dst.0, f.dst.1), idx(f.src.0, f.src.1))] += f.c;
+        }
+        for c in &self.channels.cross {
+            for l in 0..n {
+                g[(idx(c.e, l), idx(c.f, l))] -= 0.5 * c.k;
+                g[(idx(l, c.f), idx(l, c.e))] -= 0.5 * c.k;
+            }
         }
         true
     }

@@ -8,5 +8,6 @@
 //! in window time both read.
 
 pub mod amplitudes;
+mod channels;
 pub mod density;
 mod frame;
