@@ -12,6 +12,7 @@
 //! command-line parsing and does no terminal IO; the `levelplan` binary
 //! (cargo feature `cli`, on by default) does.
 
+pub mod atom;
 pub mod error;
 pub mod estimate;
 pub mod hamiltonian;
