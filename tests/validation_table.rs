@@ -12,7 +12,8 @@
 //! The physics test files: `tests/units_constants.rs`, `tests/propagation_*.rs`,
 //! `tests/estimate*.rs`, `tests/vet_physics.rs`, `tests/demo_schemes.rs`, and
 //! the unit tests of `src/model/**`, `src/units/mod.rs`, `src/hamiltonian.rs`,
-//! `src/report.rs`, `src/tune.rs`, `src/solve/*.rs`, `src/estimate/*.rs`.
+//! `src/report.rs`, `src/tune.rs`, `src/solve/*.rs`, `src/estimate/*.rs`,
+//! `src/atom/structure/*.rs`.
 //! New files matching these patterns are covered automatically.
 
 use std::collections::BTreeSet;
@@ -102,6 +103,14 @@ const NOT_PHYSICS: &[(&str, &str)] = &[
         "bisection on x >= sqrt 2, a numerical method without physics",
     ),
     ("src/tune.rs::coarse_grid_ends_exactly", "grid bookkeeping"),
+    (
+        "src/atom/structure/tests.rs::bad_inputs_are_errors_not_panics",
+        "error path",
+    ),
+    (
+        "src/atom/structure/tests.rs::d2_build_time",
+        "timing note, no physics",
+    ),
 ];
 
 fn root() -> &'static Path {
@@ -164,6 +173,7 @@ fn physics_files() -> Vec<String> {
         "src/model/envelope",
         "src/solve",
         "src/estimate",
+        "src/atom/structure",
     ] {
         for name in list(dir) {
             files.push(format!("{dir}/{name}"));

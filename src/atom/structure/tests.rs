@@ -10,12 +10,13 @@ const MHZ: f64 = 2.0 * PI * 1e6;
 /// 1 G in tesla.
 const GAUSS: f64 = 1e-4;
 
-/// 87Rb 5S1/2: D. A. Steck, "Rubidium 87 D Line Data" (A, g_J, g_I).
+/// 87Rb 5S1/2: D. A. Steck, "Rubidium 87 D Line Data" (A, g_J, g_I; from
+/// memory).
 fn rb87_s12() -> Manifold {
     Manifold {
         two_j: 1,
         two_i: 3,
-        a: 3417.341_305_452_145 * MHZ,
+        a: 3_417.341_305_452_145 * MHZ,
         b: 0.0,
         g_j: 2.002_331_13,
         g_i: -0.000_995_141_4,
@@ -23,7 +24,8 @@ fn rb87_s12() -> Manifold {
 }
 
 /// 87Rb 5P3/2: A, B from E. Arimondo, M. Inguscio and P. Violino, Rev. Mod.
-/// Phys. 49, 31 (1977) as quoted by Steck; g_J = 1.3362 and g_I from Steck.
+/// Phys. 49, 31 (1977) as quoted by Steck; g_J = 1.3362 and g_I from Steck
+/// (all from memory).
 fn rb87_p32() -> Manifold {
     Manifold {
         two_j: 3,
@@ -57,21 +59,42 @@ fn overlap(a: &Sublevel, b: &Sublevel) -> f64 {
 
 #[test]
 fn bohr_magneton_over_h_is_steck_value() {
-    // Steck: mu_B / h = 1.39962449361 MHz/G (CODATA 2018).
+    // Steck: mu_B / h = 1.39962449361 MHz/G (CODATA 2018; from memory).
     let per_gauss = MU_B / H * GAUSS / 1e6;
     assert!((per_gauss - 1.399_624_493_61).abs() < 1e-11, "{per_gauss}");
 }
 
 #[test]
+fn clebsch_gordan_follows_condon_shortley() {
+    // The phase convention the sublevel vectors rely on: j1 = 1, j2 = 1/2
+    // (Condon-Shortley table, e.g. the PDG review's table; from memory).
+    let third = (1.0_f64 / 3.0).sqrt();
+    let two_thirds = (2.0_f64 / 3.0).sqrt();
+    let cases = [
+        ((2, 2, 1, -1, 3, 1), third),
+        ((2, 0, 1, 1, 3, 1), two_thirds),
+        ((2, 2, 1, -1, 1, 1), two_thirds),
+        ((2, 0, 1, 1, 1, 1), -third),
+        ((2, 2, 1, 1, 3, 3), 1.0),
+        ((2, 2, 1, 1, 1, 1), 0.0),
+    ];
+    for ((a, b, c, d, e, f), want) in cases {
+        let got = clebsch_gordan(a, b, c, d, e, f);
+        assert!((got - want).abs() < 1e-14, "{a} {b} {c} {d} {e} {f}: {got}");
+    }
+}
+
+#[test]
 fn rb87_ground_state_at_zero_and_1000_gauss() {
-    // Zero field: Steck, F = 2 at +2563.006 MHz, F = 1 at -4271.677 MHz.
+    // Zero field: Steck, F = 2 at +2563.006 MHz, F = 1 at -4271.677 MHz
+    // (from memory).
     let m = rb87_s12();
     let hf = hyperfine_levels(&m).unwrap();
     assert_eq!(hf.iter().map(|l| l.two_f).collect::<Vec<_>>(), [2, 4]);
     assert!((hf[0].energy / MHZ + 4271.677).abs() < 1e-3);
     assert!((hf[1].energy / MHZ - 2563.006).abs() < 1e-3);
     // 1000 G: the Breit-Rabi energies (G. Breit and I. I. Rabi, Phys. Rev. 38,
-    // 2082 (1931)) with Steck's constants, to 1 kHz. Labels: F = 1 inverts
+    // 2082 (1931)) with Steck's constants, to 1 kHz (values from memory). Labels: F = 1 inverts
     // (g_F = -1/2), m_F = +1 lowest; F = 2 rises with m_F.
     let levels = sublevels(&m, 1000.0 * GAUSS).unwrap();
     let expected = [
@@ -154,7 +177,8 @@ fn breit_rabi_at_every_field() {
 
 #[test]
 fn rb87_excited_hyperfine_splittings() {
-    // Arimondo et al. 1977 constants; Steck's splittings to 1 kHz.
+    // Arimondo et al. 1977 constants; Steck's splittings to 1 kHz (from
+    // memory).
     let m = rb87_p32();
     let hf = hyperfine_levels(&m).unwrap();
     let e: Vec<f64> = hf.iter().map(|l| l.energy / MHZ).collect();
@@ -227,7 +251,7 @@ fn zero_field_diagonalisation_equals_closed_form() {
 }
 
 fn g_f(m: &Manifold, two_f: i32) -> f64 {
-    // Steck: g_F = g_J [F(F+1) - I(I+1) + J(J+1)] / [2F(F+1)]
+    // Steck (from memory): g_F = g_J [F(F+1) - I(I+1) + J(J+1)] / [2F(F+1)]
     //            + g_I [F(F+1) + I(I+1) - J(J+1)] / [2F(F+1)].
     let (f, i, j) = (xx1(two_f), xx1(m.two_i), xx1(m.two_j));
     m.g_j * (f - i + j) / (2.0 * f) + m.g_i * (f + i - j) / (2.0 * f)
@@ -235,7 +259,7 @@ fn g_f(m: &Manifold, two_f: i32) -> f64 {
 
 #[test]
 fn weak_field_is_linear_in_g_f() {
-    // Steck: Delta E = g_F m_F mu_B B to first order in B (g_F = 0 for F = 0).
+    // Steck (from memory): Delta E = g_F m_F mu_B B to first order in B (g_F = 0 for F = 0).
     // The odd part (E(B) - E(-B)) / 2 has no second-order term, so it
     // matches to 1e-6; the even part is second order, far below the linear.
     let field = 1e-6;
