@@ -402,6 +402,35 @@ fn labels_follow_the_zero_field_states() {
 }
 
 #[test]
+fn sign_falls_back_to_the_largest_amplitude() {
+    // Module convention (common practice, no source): with A = B = 0 in a
+    // field the vectors are uncoupled states. J = I = 1, m_F = 0: Zeeman
+    // order (-1, 1), (0, 0), (1, -1) takes F = 0, 1, 2; |0 0> has zero overlap
+    // with |F=1 m_F=0> (<1 0; 1 0 | 1 0> = 0), so its one amplitude is +1.
+    let m = Manifold {
+        two_j: 2,
+        two_i: 2,
+        a: 0.0,
+        b: 0.0,
+        g_j: 1.5,
+        g_i: 0.001,
+    };
+    assert_eq!(clebsch_gordan(2, 0, 2, 0, 2, 0), 0.0);
+    let levels = sublevels(&m, 0.1).unwrap();
+    let mid = find(&levels, 2, 0);
+    assert_eq!(mid.components.len(), 1);
+    assert_eq!(
+        (mid.components[0].two_m_j, mid.components[0].two_m_i),
+        (0, 0)
+    );
+    assert!((mid.components[0].amplitude - 1.0).abs() < 1e-15);
+    let low = find(&levels, 0, 0);
+    assert_eq!(low.components[0].two_m_j, -2);
+    // The overlap rule still holds where it can: <1 -1; 1 1 | 0 0> > 0.
+    assert!(low.components[0].amplitude * clebsch_gordan(2, -2, 2, 2, 0, 0) > 0.0);
+}
+
+#[test]
 fn bad_inputs_are_errors_not_panics() {
     let m = rb87_s12();
     let neg = Manifold { two_j: -1, ..m };
