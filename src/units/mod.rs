@@ -22,6 +22,8 @@ pub const A0: f64 = 5.291_772_109_03e-11;
 pub const EA0: f64 = E_CHARGE * A0;
 /// Debye (C m): 1e-21 / c.
 pub const DEBYE: f64 = 1e-21 / C;
+/// Bohr magneton mu_B (J/T), CODATA 2018: 9.2740100783(28)e-24.
+pub const MU_B: f64 = 9.274_010_078_3e-24;
 
 /// A physical dimension a scheme value may be asked for. Each kind has its
 /// own list of accepted units and converts to one SI quantity.

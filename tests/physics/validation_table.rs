@@ -12,7 +12,8 @@
 //! The physics test files: every module of the `physics` test binary
 //! (`tests/physics/*.rs` but its `main.rs` and this file), and the unit tests
 //! of `src/model/**`, `src/units/mod.rs`, `src/hamiltonian.rs`,
-//! `src/report.rs`, `src/tune.rs`, `src/solve/*.rs`, `src/estimate/*.rs`.
+//! `src/report.rs`, `src/tune.rs`, `src/solve/*.rs`, `src/estimate/*.rs`,
+//! and the atomic-structure tests under `src/atom/`.
 //! New files matching these patterns are covered automatically.
 
 use std::collections::BTreeSet;
@@ -20,6 +21,18 @@ use std::path::Path;
 
 /// Tests in the physics files that check no physics, with the reason.
 const NOT_PHYSICS: &[(&str, &str)] = &[
+    (
+        "src/atom/angular/tests/published.rs::conversion_survives_huge_numerators_and_denominators",
+        "number conversion of exact values",
+    ),
+    (
+        "src/atom/angular/tests/published.rs::d2_line_coefficients_are_fast",
+        "speed of the coefficients",
+    ),
+    (
+        "src/atom/angular/tests/rules.rs::any_i32_input_is_answered_without_panic",
+        "error path",
+    ),
     (
         "tests/physics/open_reference.rs::every_open_fixture_is_checked",
         "bookkeeping: every fixture file has a test",
@@ -110,6 +123,14 @@ const NOT_PHYSICS: &[(&str, &str)] = &[
         "bisection on x >= sqrt 2, a numerical method without physics",
     ),
     ("src/tune.rs::coarse_grid_ends_exactly", "grid bookkeeping"),
+    (
+        "src/atom/structure/tests.rs::bad_inputs_are_errors_not_panics",
+        "error path",
+    ),
+    (
+        "src/atom/structure/tests.rs::d2_build_time",
+        "timing note, no physics",
+    ),
 ];
 
 fn root() -> &'static Path {
@@ -166,6 +187,10 @@ fn physics_files() -> Vec<String> {
         "src/model/envelope",
         "src/solve",
         "src/estimate",
+        "src/atom/angular",
+        "src/atom/angular/tests",
+        "src/atom/dipole",
+        "src/atom/structure",
     ] {
         for name in list(dir) {
             files.push(format!("{dir}/{name}"));
