@@ -159,6 +159,7 @@ pub enum Initial {
 
 /// A value in the `initial:` map: a population, or a nested map (only
 /// meaningful under `mixture` or `superposition`; validation says so).
+/// Also a field's `polarization:` (a name, or a map of name: fraction).
 #[derive(Debug, Clone, PartialEq)]
 pub enum InitialValue {
     Population(Option<Scalar>),
@@ -171,7 +172,7 @@ impl<'de> Deserialize<'de> for InitialValue {
         impl<'de> Visitor<'de> for V {
             type Value = InitialValue;
             fn expecting(&self, f: &mut fmt::Formatter) -> fmt::Result {
-                f.write_str("a population, or a map of level id: population")
+                f.write_str("a single value, or a map of id: value")
             }
             fn visit_unit<E: de::Error>(self) -> Result<InitialValue, E> {
                 Ok(InitialValue::Population(None))
@@ -312,6 +313,48 @@ pub struct RawScheme {
     pub solver: Option<RawSolver>,
     #[serde(skip_serializing_if = "Option::is_none")]
     pub readout: Option<Scalar>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub manifolds: Option<Ordered<Option<RawManifold>>>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub magnetic_field: Option<Scalar>,
+}
+
+/// A fine-structure manifold that generates levels.
+#[derive(Debug, Clone, Default, Deserialize, Serialize)]
+#[serde(deny_unknown_fields, rename = "manifold")]
+pub struct RawManifold {
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub energy: Option<Scalar>,
+    #[serde(rename = "J", skip_serializing_if = "Option::is_none")]
+    pub j: Option<Scalar>,
+    #[serde(rename = "I", skip_serializing_if = "Option::is_none")]
+    pub i: Option<Scalar>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub hyperfine: Option<RawHyperfine>,
+    #[serde(rename = "g_J", skip_serializing_if = "Option::is_none")]
+    pub g_j: Option<Scalar>,
+    #[serde(rename = "g_I", skip_serializing_if = "Option::is_none")]
+    pub g_i: Option<Scalar>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub resolve: Option<Scalar>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub lifetime: Option<Scalar>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub linewidth: Option<Scalar>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub tolerance: Option<Scalar>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub label: Option<Scalar>,
+}
+
+/// Hyperfine constants A (magnetic dipole) and B (electric quadrupole).
+#[derive(Debug, Clone, Default, Deserialize, Serialize)]
+#[serde(deny_unknown_fields, rename = "hyperfine")]
+pub struct RawHyperfine {
+    #[serde(rename = "A", skip_serializing_if = "Option::is_none")]
+    pub a: Option<Scalar>,
+    #[serde(rename = "B", skip_serializing_if = "Option::is_none")]
+    pub b: Option<Scalar>,
 }
 
 #[derive(Debug, Clone, Default, Deserialize, Serialize)]
@@ -338,6 +381,10 @@ pub struct RawLevel {
 pub struct RawCoupling {
     #[serde(skip_serializing_if = "Option::is_none")]
     pub between: Option<Vec<Id>>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub reduced_dipole: Option<Scalar>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub from_lifetime: Option<Scalar>,
     #[serde(skip_serializing_if = "Option::is_none")]
     pub dipole: Option<Scalar>,
     #[serde(skip_serializing_if = "Option::is_none")]
@@ -379,6 +426,9 @@ pub struct RawField {
     pub rwa: Option<bool>,
     #[serde(skip_serializing_if = "Option::is_none")]
     pub linewidth: Option<Scalar>,
+    /// `sigma+ | sigma- | pi` or a map of those to intensity fractions.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub polarization: Option<InitialValue>,
 }
 
 #[derive(Debug, Clone, Default, Deserialize, Serialize)]

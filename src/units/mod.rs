@@ -56,6 +56,8 @@ pub enum Kind {
     Chirp,
     /// Angle (rad): "pi", "0.5 pi", "1.2 rad" or a bare number of radians.
     Angle,
+    /// Magnetic flux density (T): "3 G", "0.3 mT".
+    MagneticField,
 }
 
 const TWO_PI: f64 = 2.0 * PI;
@@ -78,6 +80,7 @@ const CLASSIFY_ORDER: &[Kind] = &[
     Kind::Power,
     Kind::Chirp,
     Kind::Angle,
+    Kind::MagneticField,
 ];
 
 impl Kind {
@@ -95,6 +98,7 @@ impl Kind {
             Kind::Power => POWER_UNITS,
             Kind::Chirp => CHIRP_UNITS,
             Kind::Angle => ANGLE_UNITS,
+            Kind::MagneticField => FIELD_UNITS,
         }
     }
 
@@ -112,6 +116,7 @@ impl Kind {
             Kind::Power => "a power",
             Kind::Chirp => "a chirp rate",
             Kind::Angle => "an angle",
+            Kind::MagneticField => "a magnetic field",
         }
     }
 
@@ -128,6 +133,7 @@ impl Kind {
             Kind::Power => "power",
             Kind::Chirp => "chirp rate",
             Kind::Angle => "angle",
+            Kind::MagneticField => "magnetic field",
         }
     }
 

@@ -325,3 +325,27 @@ pub(super) const ANGLE_UNITS: &[UnitDef] = &[
         factor: 1.0,
     },
 ];
+
+/// Magnetic flux density: tesla and gauss (1 G = 1e-4 T).
+pub(super) const FIELD_UNITS: &[UnitDef] = &[
+    UnitDef {
+        names: &["G"],
+        factor: 1e-4,
+    },
+    UnitDef {
+        names: &["mG"],
+        factor: 1e-7,
+    },
+    UnitDef {
+        names: &["T"],
+        factor: 1.0,
+    },
+    UnitDef {
+        names: &["mT"],
+        factor: 1e-3,
+    },
+    UnitDef {
+        names: &["uT", "µT", "μT"],
+        factor: 1e-6,
+    },
+];

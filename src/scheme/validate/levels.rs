@@ -82,15 +82,25 @@ impl Levels {
     pub fn ids(&self) -> &[String] {
         &self.ids
     }
+
+    /// One more level (a generated one), after those of `levels:`.
+    pub fn push(&mut self, level: Level, energy_ok: bool) {
+        self.index.insert(level.id.clone(), self.list.len());
+        self.ids.push(level.id.clone());
+        self.list.push(level);
+        self.energy_ok.push(energy_ok);
+    }
 }
 
 /// The `levels:` map; None (with a message) when it is missing, empty or
-/// too long, since nothing else can be checked without levels.
+/// too long, since nothing else can be checked without levels (a scheme
+/// with `manifolds:` may have no `levels:`).
 pub(super) fn levels(raw: &RawScheme, ctx: &mut Ctx) -> Option<Levels> {
     let lp = KeyPath::root().k("levels");
     let raw_levels: &[(Id, Option<super::super::raw::RawLevel>)] =
         raw.levels.as_ref().map(|o| &o.0[..]).unwrap_or(&[]);
-    if raw_levels.is_empty() {
+    let generated = raw.manifolds.as_ref().is_some_and(|m| !m.0.is_empty());
+    if raw_levels.is_empty() && !(generated && raw.levels.is_none()) {
         let found = if raw.levels.is_none() {
             "nothing (the key is missing)"
         } else {
@@ -129,7 +139,7 @@ pub(super) fn levels(raw: &RawScheme, ctx: &mut Ctx) -> Option<Levels> {
 }
 
 /// One level; the flag tells whether its energy is known.
-fn level(
+pub(super) fn level(
     ctx: &mut Ctx,
     id: &str,
     lvl: Option<&super::super::raw::RawLevel>,
