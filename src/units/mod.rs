@@ -79,7 +79,7 @@ const CLASSIFY_ORDER: &[Kind] = &[
 ];
 
 impl Kind {
-    fn table(self) -> &'static [UnitDef] {
+    fn table(self) -> Table {
         match self {
             Kind::Energy => ENERGY_UNITS,
             Kind::Time => TIME_UNITS,
@@ -94,6 +94,11 @@ impl Kind {
             Kind::Chirp => CHIRP_UNITS,
             Kind::Angle => ANGLE_UNITS,
         }
+    }
+
+    /// The accepted units, in the order they are listed.
+    fn entries(self) -> impl Iterator<Item = &'static UnitDef> {
+        self.table().iter().flat_map(|group| group.iter())
     }
 
     /// "an energy", "a time", ... as used in messages.
@@ -140,8 +145,7 @@ impl Kind {
 
     /// Canonical spellings of the accepted units, in the order they are listed.
     pub fn units(self) -> Vec<&'static str> {
-        self.table()
-            .iter()
+        self.entries()
             .filter_map(|u| u.names.first().copied())
             .collect()
     }
@@ -158,8 +162,7 @@ impl Kind {
 
     /// Factor to SI of a unit spelling, if this kind accepts it.
     fn factor_of(self, unit: &str) -> Option<f64> {
-        self.table()
-            .iter()
+        self.entries()
             .find(|u| u.names.contains(&unit))
             .map(|u| u.factor)
     }
