@@ -267,6 +267,17 @@ impl<'a> Ctx<'a> {
         d.rabi * self.views[d.field].rabi_factor
     }
 
+    /// The source of `population` through drive `drive` from level `from`.
+    pub(crate) fn source(&self, drive: usize, from: usize, population: f64) -> Source {
+        Source {
+            drive,
+            from,
+            detuning: self.model.detuning(&self.model.drives[drive]),
+            rabi: self.rabi(drive),
+            population,
+        }
+    }
+
     /// Drives with a non-zero Rabi frequency between `level` and an initially
     /// populated level: `(drive, initial level)`.
     pub(crate) fn first_order_drives(
@@ -402,19 +413,29 @@ fn sort_sources(sources: &mut [Source]) {
     sources.sort_by(|a, b| b.population.total_cmp(&a.population));
 }
 
+/// The estimate of one level from its drives (the decay sources are added
+/// afterwards).
+fn driven(
+    order: Order,
+    first_order: Option<f64>,
+    second_order: Option<f64>,
+    sources: Vec<Source>,
+) -> LevelEstimate {
+    LevelEstimate {
+        order,
+        first_order,
+        second_order,
+        sources,
+        decay_sources: vec![],
+    }
+}
+
 /// The estimate of one level and its total amplitude at its order.
 pub(crate) fn level_estimate(ctx: &Ctx<'_>, k: usize) -> Result<(LevelEstimate, C), EstimateError> {
     let m = ctx.model;
     let zero = C::new(0.0, 0.0);
     if ctx.p(k) > 0.0 {
-        let le = LevelEstimate {
-            order: Order::Initial,
-            first_order: None,
-            second_order: None,
-            sources: vec![],
-            decay_sources: vec![],
-        };
-        return Ok((le, zero));
+        return Ok((driven(Order::Initial, None, None, vec![]), zero));
     }
     let mut sources = Vec::new();
     let mut total = zero;
@@ -427,27 +448,14 @@ pub(crate) fn level_estimate(ctx: &Ctx<'_>, k: usize) -> Result<(LevelEstimate, 
             )
         })?;
         total += amp;
-        sources.push(Source {
-            drive: i,
-            from: n,
-            detuning: m.detuning(&m.drives[i]),
-            rabi: ctx.rabi(i),
-            population,
-        });
+        sources.push(ctx.source(i, n, population));
     }
     if !sources.is_empty() {
         sort_sources(&mut sources);
         let p = finite(total.norm_sqr(), || {
             format!("first order of level '{}'", m.levels[k].id)
         })?;
-        let le = LevelEstimate {
-            order: Order::First,
-            first_order: Some(p),
-            second_order: None,
-            sources,
-            decay_sources: vec![],
-        };
-        return Ok((le, total));
+        return Ok((driven(Order::First, Some(p), None, sources), total));
     }
     match nested::second_order(ctx, k)? {
         Some((mut sources, total)) => {
@@ -455,25 +463,10 @@ pub(crate) fn level_estimate(ctx: &Ctx<'_>, k: usize) -> Result<(LevelEstimate, 
             let p = finite(total.norm_sqr(), || {
                 format!("second order of level '{}'", m.levels[k].id)
             })?;
-            let le = LevelEstimate {
-                order: Order::Second,
-                first_order: Some(0.0),
-                second_order: Some(p),
-                sources,
-                decay_sources: vec![],
-            };
+            let le = driven(Order::Second, Some(0.0), Some(p), sources);
             Ok((le, total))
         }
-        None => {
-            let le = LevelEstimate {
-                order: Order::Unreached,
-                first_order: Some(0.0),
-                second_order: None,
-                sources: vec![],
-                decay_sources: vec![],
-            };
-            Ok((le, zero))
-        }
+        None => Ok((driven(Order::Unreached, Some(0.0), None, vec![]), zero)),
     }
 }
 
