@@ -75,13 +75,6 @@ impl Shape for Gaussian {
         Some(self.sigma * (2.0 * PI).sqrt() * (-0.5 * x * x).exp())
     }
 
-    /// The spectrum does not oscillate: its modulus.
-    fn spectrum_bound(&self, nu: f64) -> Option<f64> {
-        self.spectrum(nu.abs())
-            .filter(|f| f.is_finite())
-            .map(f64::abs)
-    }
-
     fn stretched(&self, s: f64) -> Envelope {
         Envelope::Gaussian {
             center: self.center,

@@ -85,8 +85,13 @@ pub(crate) trait Shape {
     /// Closed-form spectrum over all time (None: no closed form).
     fn spectrum(&self, nu: f64) -> Option<f64>;
     /// Upper bound on |F(nu)| following the envelope of an oscillating line,
-    /// capped by the area (None: no closed form).
-    fn spectrum_bound(&self, nu: f64) -> Option<f64>;
+    /// capped by the area (None: no closed form). By default, for a spectrum
+    /// that does not oscillate: its modulus.
+    fn spectrum_bound(&self, nu: f64) -> Option<f64> {
+        self.spectrum(nu.abs())
+            .filter(|f| f.is_finite())
+            .map(f64::abs)
+    }
     /// The same shape stretched in time by `s` about its centre.
     fn stretched(&self, s: f64) -> super::Envelope;
     /// Parameters finite, lengths positive, samples well formed.

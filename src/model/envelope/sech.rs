@@ -83,13 +83,6 @@ impl Shape for Sech {
         Some(PI * self.tau * sech(PI * nu * self.tau / 2.0))
     }
 
-    /// The spectrum does not oscillate: its modulus.
-    fn spectrum_bound(&self, nu: f64) -> Option<f64> {
-        self.spectrum(nu.abs())
-            .filter(|f| f.is_finite())
-            .map(f64::abs)
-    }
-
     fn stretched(&self, s: f64) -> Envelope {
         Envelope::Sech {
             center: self.center,
