@@ -267,15 +267,28 @@ impl<'a> Ctx<'a> {
         d.rabi * self.views[d.field].rabi_factor
     }
 
-    /// The source of `population` through drive `drive` from level `from`.
-    pub(crate) fn source(&self, drive: usize, from: usize, population: f64) -> Source {
-        Source {
+    /// Add the amplitude `amp` that drive `drive` brings from level `from`
+    /// to the `total` and its population to the `sources`; a non-finite
+    /// population is refused, `what` naming it.
+    pub(crate) fn add_source(
+        &self,
+        sources: &mut Vec<Source>,
+        total: &mut C,
+        drive: usize,
+        from: usize,
+        amp: C,
+        what: impl FnOnce() -> String,
+    ) -> Result<(), EstimateError> {
+        let population = finite(amp.norm_sqr(), what)?;
+        *total += amp;
+        sources.push(Source {
             drive,
             from,
             detuning: self.model.detuning(&self.model.drives[drive]),
             rabi: self.rabi(drive),
             population,
-        }
+        });
+        Ok(())
     }
 
     /// Drives with a non-zero Rabi frequency between `level` and an initially
@@ -441,14 +454,12 @@ pub(crate) fn level_estimate(ctx: &Ctx<'_>, k: usize) -> Result<(LevelEstimate, 
     let mut total = zero;
     for (i, n) in ctx.first_order_drives(k) {
         let amp = contribution(ctx, i, n, k)?;
-        let population = finite(amp.norm_sqr(), || {
+        ctx.add_source(&mut sources, &mut total, i, n, amp, || {
             format!(
                 "first order of level '{}' from '{}'",
                 m.levels[k].id, m.levels[n].id
             )
         })?;
-        total += amp;
-        sources.push(ctx.source(i, n, population));
     }
     if !sources.is_empty() {
         sort_sources(&mut sources);

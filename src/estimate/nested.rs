@@ -17,7 +17,7 @@
 use num_complex::Complex64 as C;
 
 use super::spectrum::{phi012, segments, triangle, Richardson, ATOL_L1, MAX_PANELS_NESTED, RTOL};
-use super::{finite, terms, Ctx, EstimateError, Source};
+use super::{terms, Ctx, EstimateError, Source};
 
 /// One exponential term `coeff f(t) exp(i [nu u + kappa u^2])`, `u = t - t_c`,
 /// of a drive's matrix element (coefficient includes `-i`, `Omega/2`, the
@@ -80,15 +80,13 @@ pub(crate) fn second_order(
             slot_drive.push(i);
         }
         let amps = march(ctx, &inner, &outer, slot_drive.len())?;
-        for (&i, a) in slot_drive.iter().zip(&amps) {
-            let population = finite(a.norm_sqr(), || {
+        for (&i, &a) in slot_drive.iter().zip(&amps) {
+            ctx.add_source(&mut sources, &mut total, i, mid, a, || {
                 format!(
                     "second order of level '{}' through '{}'",
                     m.levels[k].id, m.levels[mid].id
                 )
             })?;
-            total += a;
-            sources.push(ctx.source(i, mid, population));
         }
     }
     Ok(Some((sources, total)))
