@@ -207,6 +207,14 @@ fn numeric_prefix_len(s: &str) -> usize {
     if digits == 0 {
         return 0;
     }
+    exponent_end(b, i)
+}
+
+/// Where an exponent (`e` or `E`, an optional sign, at least one digit)
+/// starting at byte `i` of `b` ends; `i` when none starts there.
+// Same scan as the exponent of scan/axis.rs `split_number`: that copy can
+// call this one (scan/ was being edited elsewhere when this was shared).
+pub(crate) fn exponent_end(b: &[u8], i: usize) -> usize {
     if i < b.len() && (b[i] == b'e' || b[i] == b'E') {
         let mut j = i + 1;
         if j < b.len() && (b[j] == b'+' || b[j] == b'-') {
@@ -217,7 +225,7 @@ fn numeric_prefix_len(s: &str) -> usize {
             j += 1;
         }
         if j > exp_start {
-            i = j;
+            return j;
         }
     }
     i
