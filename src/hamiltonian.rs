@@ -108,6 +108,7 @@ impl FrameLevel {
     }
 }
 
+// Same shape as Estimate, Solution and ScaledFrame: each stage's plain data, other fields.
 /// The frame Hamiltonian of a model: a sparse list of terms plus a diagonal.
 #[derive(Debug, Clone, PartialEq)]
 pub struct FrameHamiltonian {

@@ -233,6 +233,7 @@ pub fn line_svg(p: &LinePlot) -> Result<String, PlotError> {
     Ok(svg)
 }
 
+// Same shape as LinePlot (and the scan plot specs): the plain data of another kind of plot.
 /// A heat map of a population over a 2-D grid (logarithmic colour scale)
 /// with the outline of the cells above a tolerance.
 #[derive(Debug, Clone, PartialEq)]

@@ -65,6 +65,7 @@ pub enum YamlErrorKind {
     Data,
 }
 
+// Same shape as validate/fields.rs FieldInfo: plain fields of a different record.
 /// A YAML error, located and phrased as "expected X, found Y".
 #[derive(Debug, Clone, PartialEq, Eq, thiserror::Error)]
 #[error("expected {expected}, found {found}")]

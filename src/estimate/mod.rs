@@ -196,6 +196,7 @@ pub struct Remedy {
     pub length_rule: LengthRule,
 }
 
+// Same shape as FrameHamiltonian and its error: each stage's plain data, other fields.
 /// The estimate of every level.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Estimate {

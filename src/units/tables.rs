@@ -52,6 +52,7 @@ pub(super) const ENERGY_UNITS: Table = &[
     &[unit(&["J"], 1.0 / HBAR)],
 ];
 
+// Same shape as LENGTH_UNITS: SI prefixes written out, so that every spelling can be read.
 pub(super) const TIME_UNITS: Table = &[&[
     unit(&["s"], 1.0),
     unit(&["ms"], 1e-3),

@@ -48,6 +48,7 @@ pub(crate) fn fwhm_fraction() -> f64 {
     1.0 - 2.0 * 0.5 * (lo + hi)
 }
 
+// Same header as rectangular.rs and sin2.rs (NAME, variant, value): one Profile impl each.
 impl Profile for Blackman {
     const NAME: &'static str = "blackman";
 

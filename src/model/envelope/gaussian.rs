@@ -24,6 +24,7 @@ pub fn gaussian_sigma_from_intensity_fwhm(fwhm: f64) -> f64 {
     fwhm / (2.0 * (2.0f64.ln()).sqrt())
 }
 
+// Same shape as sech.rs: the other smooth shape, each method its own formula.
 impl Shape for Gaussian {
     const NAME: &'static str = "gaussian";
 

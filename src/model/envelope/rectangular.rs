@@ -10,6 +10,7 @@ use super::{cap_line, sinc, Envelope};
 /// The rectangular profile.
 pub(crate) struct Rectangular;
 
+// Same header as sin2.rs and blackman.rs (NAME, variant, value): one Profile impl each.
 impl Profile for Rectangular {
     const NAME: &'static str = "rectangular";
 

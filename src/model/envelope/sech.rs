@@ -34,6 +34,7 @@ pub fn sech_intensity_fwhm(tau: f64) -> f64 {
     2.0 * 2f64.sqrt().acosh() * tau
 }
 
+// Same shape as gaussian.rs: the other smooth shape, each method its own formula.
 impl Shape for Sech {
     const NAME: &'static str = "sech";
 

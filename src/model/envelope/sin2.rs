@@ -13,6 +13,7 @@ use super::{cap_line, sine_over_poles, Envelope};
 /// The sin^2 profile.
 pub(crate) struct Sin2;
 
+// Same header as rectangular.rs and blackman.rs (NAME, variant, value): one Profile impl each.
 impl Profile for Sin2 {
     const NAME: &'static str = "sin2";
 
