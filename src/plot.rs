@@ -15,6 +15,7 @@ pub struct Curve {
     pub color: usize,
 }
 
+// Same shape as HeatMap (and the plot specs of pipeline/study.rs): plain data of one plot.
 /// What to draw.
 #[derive(Debug, Clone, PartialEq)]
 pub struct LinePlot {
