@@ -108,6 +108,7 @@ impl FrameLevel {
     }
 }
 
+// Same shape as Estimate, Solution and ScaledFrame: each stage's plain data, other fields.
 /// The frame Hamiltonian of a model: a sparse list of terms plus a diagonal.
 #[derive(Debug, Clone, PartialEq)]
 pub struct FrameHamiltonian {
@@ -268,6 +269,12 @@ fn drive_terms(
         let dcurv = fr.curvature[b] - fr.curvature[a];
         let ddet = fr.detuning[b] - fr.detuning[a];
         let half = 0.5 * d.rabi;
+        // One term of this drive from its phase (rho0, rate, sweep).
+        let term = |(rho0, rate, sweep): (f64, f64, f64), rotation| {
+            make_term(
+                i, d.field, a, b, half, rho0, rate, sweep, duration, rotation,
+            )
+        };
         // Co-rotating: rho = phi - (varphi_b - varphi_a).
         if fr.on_tree[i] {
             terms.push(Term {
@@ -281,17 +288,8 @@ fn drive_terms(
                 on_tree: true,
             });
         } else {
-            let (rho0, rate, sweep) = (p0 - dphase0, shift + ddet, p2 - dcurv);
-            terms.push(make_term(
-                i,
-                d.field,
-                a,
-                b,
-                half,
-                rho0,
-                rate,
-                sweep,
-                duration,
+            terms.push(term(
+                (p0 - dphase0, shift + ddet, p2 - dcurv),
                 Rotation::CoRotating,
             ));
         }
@@ -299,17 +297,8 @@ fn drive_terms(
             // Counter-rotating: rho = -phi - (varphi_b - varphi_a);
             // d/dt (varphi_b - varphi_a) = omega_ab - (delta_b - delta_a).
             let omega_ab = model.transition_omega(d.coupling);
-            let (rho0, rate, sweep) = (-p0 - dphase0, -p1 - omega_ab + ddet, -p2 - dcurv);
-            terms.push(make_term(
-                i,
-                d.field,
-                a,
-                b,
-                half,
-                rho0,
-                rate,
-                sweep,
-                duration,
+            terms.push(term(
+                (-p0 - dphase0, -p1 - omega_ab + ddet, -p2 - dcurv),
                 Rotation::CounterRotating,
             ));
         }

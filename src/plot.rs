@@ -15,6 +15,7 @@ pub struct Curve {
     pub color: usize,
 }
 
+// Same shape as HeatMap (and the plot specs of pipeline/study.rs): plain data of one plot.
 /// What to draw.
 #[derive(Debug, Clone, PartialEq)]
 pub struct LinePlot {
@@ -233,6 +234,7 @@ pub fn line_svg(p: &LinePlot) -> Result<String, PlotError> {
     Ok(svg)
 }
 
+// Same shape as LinePlot (and the scan plot specs): the plain data of another kind of plot.
 /// A heat map of a population over a 2-D grid (logarithmic colour scale)
 /// with the outline of the cells above a tolerance.
 #[derive(Debug, Clone, PartialEq)]

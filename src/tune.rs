@@ -125,6 +125,7 @@ pub fn maximize<T: Clone, E>(
     }))
 }
 
+// Same signature shape as `maximize`: the other search over the coarse grid (yes/no objective).
 /// The smallest t whose condition holds: `ok[i]` is the condition at `ts[i]`
 /// (with its data). The first coarse point that holds and its predecessor
 /// bracket the boundary, and bisection narrows it to width <= `xtol`. The

@@ -65,6 +65,7 @@ pub enum YamlErrorKind {
     Data,
 }
 
+// Same shape as validate/fields.rs FieldInfo: plain fields of a different record.
 /// A YAML error, located and phrased as "expected X, found Y".
 #[derive(Debug, Clone, PartialEq, Eq, thiserror::Error)]
 #[error("expected {expected}, found {found}")]
@@ -185,35 +186,30 @@ impl<'de> Deserialize<'de> for Walk {
 
 struct WalkVisitor;
 
+/// The scalar visits of [`WalkVisitor`]: each takes its value and drops it.
+macro_rules! drop_scalars {
+    ($($visit:ident($t:ty)),* $(,)?) => {
+        $(fn $visit<E: de::Error>(self, _: $t) -> Result<Walk, E> {
+            Ok(Walk)
+        })*
+    };
+}
+
 impl<'de> Visitor<'de> for WalkVisitor {
     type Value = Walk;
     fn expecting(&self, f: &mut fmt::Formatter) -> fmt::Result {
         f.write_str("any YAML node")
     }
-    fn visit_bool<E: de::Error>(self, _: bool) -> Result<Walk, E> {
-        Ok(Walk)
-    }
-    fn visit_i64<E: de::Error>(self, _: i64) -> Result<Walk, E> {
-        Ok(Walk)
-    }
-    fn visit_u64<E: de::Error>(self, _: u64) -> Result<Walk, E> {
-        Ok(Walk)
-    }
-    fn visit_i128<E: de::Error>(self, _: i128) -> Result<Walk, E> {
-        Ok(Walk)
-    }
-    fn visit_u128<E: de::Error>(self, _: u128) -> Result<Walk, E> {
-        Ok(Walk)
-    }
-    fn visit_f64<E: de::Error>(self, _: f64) -> Result<Walk, E> {
-        Ok(Walk)
-    }
-    fn visit_str<E: de::Error>(self, _: &str) -> Result<Walk, E> {
-        Ok(Walk)
-    }
-    fn visit_bytes<E: de::Error>(self, _: &[u8]) -> Result<Walk, E> {
-        Ok(Walk)
-    }
+    drop_scalars!(
+        visit_bool(bool),
+        visit_i64(i64),
+        visit_u64(u64),
+        visit_i128(i128),
+        visit_u128(u128),
+        visit_f64(f64),
+        visit_str(&str),
+        visit_bytes(&[u8]),
+    );
     fn visit_unit<E: de::Error>(self) -> Result<Walk, E> {
         Ok(Walk)
     }

@@ -188,6 +188,7 @@ pub struct EvolveArgs {
     /// included (2 to 1,000,000).
     #[arg(long, default_value_t = 201, value_name = "N")]
     pub samples: usize,
+    // Same shape as scan's and merge's --out/--plot: apart, each help says what its files hold.
     /// Write the CSV (time in s, populations) to this file (written whole or not at all)
     /// instead of stdout.
     #[arg(long, value_name = "FILE.csv")]
@@ -220,6 +221,7 @@ pub struct ScanArgs {
     pub log: bool,
     #[command(flatten)]
     pub tolerance: ToleranceArg,
+    // Same shape as evolve's --out/--plot: apart, each help says what its files hold.
     /// Write the CSV here (progressively to .FILE.partial, renamed when complete)
     /// instead of stdout.
     #[arg(long, value_name = "FILE.csv")]
@@ -296,6 +298,7 @@ pub struct MergeArgs {
     /// Part files, in any order.
     #[arg(required = true, value_name = "PART.csv")]
     pub parts: Vec<PathBuf>,
+    // Same shape as evolve's and scan's --out/--plot: apart, each help says what its files hold.
     /// Write the merged CSV here (atomically) instead of stdout.
     #[arg(long, value_name = "FILE.csv")]
     pub out: Option<PathBuf>,

@@ -196,6 +196,7 @@ pub struct Remedy {
     pub length_rule: LengthRule,
 }
 
+// Same shape as FrameHamiltonian and its error: each stage's plain data, other fields.
 /// The estimate of every level.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Estimate {
@@ -265,6 +266,30 @@ impl<'a> Ctx<'a> {
     pub(crate) fn rabi(&self, drive: usize) -> f64 {
         let d = &self.model.drives[drive];
         d.rabi * self.views[d.field].rabi_factor
+    }
+
+    /// Add the amplitude `amp` that drive `drive` brings from level `from`
+    /// to the `total` and its population to the `sources`; a non-finite
+    /// population is refused, `what` naming it.
+    pub(crate) fn add_source(
+        &self,
+        sources: &mut Vec<Source>,
+        total: &mut C,
+        drive: usize,
+        from: usize,
+        amp: C,
+        what: impl FnOnce() -> String,
+    ) -> Result<(), EstimateError> {
+        let population = finite(amp.norm_sqr(), what)?;
+        *total += amp;
+        sources.push(Source {
+            drive,
+            from,
+            detuning: self.model.detuning(&self.model.drives[drive]),
+            rabi: self.rabi(drive),
+            population,
+        });
+        Ok(())
     }
 
     /// Drives with a non-zero Rabi frequency between `level` and an initially
@@ -402,52 +427,47 @@ fn sort_sources(sources: &mut [Source]) {
     sources.sort_by(|a, b| b.population.total_cmp(&a.population));
 }
 
+/// The estimate of one level from its drives (the decay sources are added
+/// afterwards).
+fn driven(
+    order: Order,
+    first_order: Option<f64>,
+    second_order: Option<f64>,
+    sources: Vec<Source>,
+) -> LevelEstimate {
+    LevelEstimate {
+        order,
+        first_order,
+        second_order,
+        sources,
+        decay_sources: vec![],
+    }
+}
+
 /// The estimate of one level and its total amplitude at its order.
 pub(crate) fn level_estimate(ctx: &Ctx<'_>, k: usize) -> Result<(LevelEstimate, C), EstimateError> {
     let m = ctx.model;
     let zero = C::new(0.0, 0.0);
     if ctx.p(k) > 0.0 {
-        let le = LevelEstimate {
-            order: Order::Initial,
-            first_order: None,
-            second_order: None,
-            sources: vec![],
-            decay_sources: vec![],
-        };
-        return Ok((le, zero));
+        return Ok((driven(Order::Initial, None, None, vec![]), zero));
     }
     let mut sources = Vec::new();
     let mut total = zero;
     for (i, n) in ctx.first_order_drives(k) {
         let amp = contribution(ctx, i, n, k)?;
-        let population = finite(amp.norm_sqr(), || {
+        ctx.add_source(&mut sources, &mut total, i, n, amp, || {
             format!(
                 "first order of level '{}' from '{}'",
                 m.levels[k].id, m.levels[n].id
             )
         })?;
-        total += amp;
-        sources.push(Source {
-            drive: i,
-            from: n,
-            detuning: m.detuning(&m.drives[i]),
-            rabi: ctx.rabi(i),
-            population,
-        });
     }
     if !sources.is_empty() {
         sort_sources(&mut sources);
         let p = finite(total.norm_sqr(), || {
             format!("first order of level '{}'", m.levels[k].id)
         })?;
-        let le = LevelEstimate {
-            order: Order::First,
-            first_order: Some(p),
-            second_order: None,
-            sources,
-            decay_sources: vec![],
-        };
-        return Ok((le, total));
+        return Ok((driven(Order::First, Some(p), None, sources), total));
     }
     match nested::second_order(ctx, k)? {
         Some((mut sources, total)) => {
@@ -455,25 +475,10 @@ pub(crate) fn level_estimate(ctx: &Ctx<'_>, k: usize) -> Result<(LevelEstimate, 
             let p = finite(total.norm_sqr(), || {
                 format!("second order of level '{}'", m.levels[k].id)
             })?;
-            let le = LevelEstimate {
-                order: Order::Second,
-                first_order: Some(0.0),
-                second_order: Some(p),
-                sources,
-                decay_sources: vec![],
-            };
+            let le = driven(Order::Second, Some(0.0), Some(p), sources);
             Ok((le, total))
         }
-        None => {
-            let le = LevelEstimate {
-                order: Order::Unreached,
-                first_order: Some(0.0),
-                second_order: None,
-                sources: vec![],
-                decay_sources: vec![],
-            };
-            Ok((le, zero))
-        }
+        None => Ok((driven(Order::Unreached, Some(0.0), None, vec![]), zero)),
     }
 }
 

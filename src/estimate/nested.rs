@@ -69,54 +69,42 @@ pub(crate) fn second_order(
     for &mid in &mids {
         let mut inner = Vec::new();
         for (i, n) in ctx.first_order_drives(mid) {
-            let (ts, nt) = terms(ctx, i, mid);
             let scale = C::new(0.0, -0.5 * ctx.rabi(i)) * ctx.amp0(n);
-            for t in &ts[..nt] {
-                inner.push(NTerm {
-                    field: m.drives[i].field,
-                    coeff: scale * C::from_polar(1.0, t.theta_c),
-                    nu: t.nu,
-                    kappa: t.kappa,
-                    slot: 0,
-                });
-            }
+            push_terms(ctx, &mut inner, i, mid, scale, 0);
         }
         let mut outer = Vec::new();
         let mut slot_drive = Vec::new();
         for &(i, _) in last.iter().filter(|x| x.1 == mid) {
-            let (ts, nt) = terms(ctx, i, k);
             let scale = C::new(0.0, -0.5 * ctx.rabi(i));
-            for t in &ts[..nt] {
-                outer.push(NTerm {
-                    field: m.drives[i].field,
-                    coeff: scale * C::from_polar(1.0, t.theta_c),
-                    nu: t.nu,
-                    kappa: t.kappa,
-                    slot: slot_drive.len(),
-                });
-            }
+            push_terms(ctx, &mut outer, i, k, scale, slot_drive.len());
             slot_drive.push(i);
         }
         let amps = march(ctx, &inner, &outer, slot_drive.len())?;
-        for (&i, a) in slot_drive.iter().zip(&amps) {
-            let population = a.norm_sqr();
-            if !population.is_finite() {
-                return Err(EstimateError::NonFinite(format!(
+        for (&i, &a) in slot_drive.iter().zip(&amps) {
+            ctx.add_source(&mut sources, &mut total, i, mid, a, || {
+                format!(
                     "second order of level '{}' through '{}'",
                     m.levels[k].id, m.levels[mid].id
-                )));
-            }
-            total += a;
-            sources.push(Source {
-                drive: i,
-                from: mid,
-                detuning: m.detuning(&m.drives[i]),
-                rabi: ctx.rabi(i),
-                population,
-            });
+                )
+            })?;
         }
     }
     Ok(Some((sources, total)))
+}
+
+/// The exponential terms of drive `drive`'s matrix element into level `to`,
+/// each times `scale`, pushed onto `out` under `slot`.
+fn push_terms(ctx: &Ctx<'_>, out: &mut Vec<NTerm>, drive: usize, to: usize, scale: C, slot: usize) {
+    let (ts, nt) = terms(ctx, drive, to);
+    for t in &ts[..nt] {
+        out.push(NTerm {
+            field: ctx.model.drives[drive].field,
+            coeff: scale * C::from_polar(1.0, t.theta_c),
+            nu: t.nu,
+            kappa: t.kappa,
+            slot,
+        });
+    }
 }
 
 /// Node values of one term: envelope, phase, e^{i phase}.

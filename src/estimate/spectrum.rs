@@ -399,6 +399,18 @@ mod tests {
         t
     }
 
+    /// Every one of the four triangle integrals within `tol` of the other's.
+    fn assert_close(a: &[C; 4], b: &[C; 4], tol: f64, case: &str) {
+        for i in 0..4 {
+            assert!(
+                (a[i] - b[i]).norm() < tol,
+                "{case} i={i}: {} vs {}",
+                a[i],
+                b[i]
+            );
+        }
+    }
+
     // The three regimes of `triangle` agree with brute force (elementary
     // integrals; common practice, no source).
     #[test]
@@ -414,14 +426,7 @@ mod tests {
         for (p, q) in cases {
             let a = triangle(p, q);
             let b = triangle_brute(p, q);
-            for i in 0..4 {
-                assert!(
-                    (a[i] - b[i]).norm() < 2e-6,
-                    "p={p} q={q} i={i}: {} vs {}",
-                    a[i],
-                    b[i]
-                );
-            }
+            assert_close(&a, &b, 2e-6, &format!("p={p} q={q}"));
         }
     }
 
@@ -440,20 +445,8 @@ mod tests {
             let a = triangle_large_p(p, q);
             let b = triangle_large_q(p, q);
             let c = triangle_series(p, q);
-            for i in 0..4 {
-                assert!(
-                    (a[i] - c[i]).norm() < 1e-14,
-                    "{p} {q} {i}: {} {}",
-                    a[i],
-                    c[i]
-                );
-                assert!(
-                    (b[i] - c[i]).norm() < 1e-14,
-                    "{p} {q} {i}: {} {}",
-                    b[i],
-                    c[i]
-                );
-            }
+            assert_close(&a, &c, 1e-14, &format!("large p, {p} {q}"));
+            assert_close(&b, &c, 1e-14, &format!("large q, {p} {q}"));
         }
     }
 

@@ -105,6 +105,7 @@ impl VetOptions {
         self
     }
 
+    // Same shape as the ModelBuilder setters: one consuming setter per option.
     /// The defaults with this goal.
     pub fn with_goal(mut self, goal: Option<f64>) -> Self {
         self.goal = goal;

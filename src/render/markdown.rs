@@ -64,6 +64,7 @@ mod tests {
         String::from_utf8(b).unwrap()
     }
 
+    // Same shape as text.rs's vet test: each format checks its own bytes.
     #[test]
     fn vet_is_a_heading_a_list_and_pipe_tables() {
         let t = markdown(&vet_doc(&sample::vet_report()));

@@ -83,6 +83,7 @@ mod tests {
         String::from_utf8(b).unwrap()
     }
 
+    // Same shape as markdown.rs's vet test: each format checks its own bytes.
     #[test]
     fn vet_table_is_aligned_and_flags_read_without_colour() {
         let t = vet_text(false);

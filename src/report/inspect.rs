@@ -58,6 +58,7 @@ pub struct InspectDrive {
     pub relative_dipole: bool,
 }
 
+// Same shape as the vet report rows: one serde field per JSON key (docs/output-format.md).
 /// One field of the inspect report.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 #[non_exhaustive]

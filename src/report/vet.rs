@@ -90,6 +90,7 @@ impl Serialize for SourceRow {
     }
 }
 
+// Same shape as the other report rows: one serde field per JSON key (docs/output-format.md).
 /// A computed remedy for a flagged leak.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 #[non_exhaustive]
@@ -170,6 +171,7 @@ impl UncheckedRemedy {
     }
 }
 
+// Same shape as the other report rows: one serde field per JSON key (docs/output-format.md).
 /// One level's line of the vet report.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 #[non_exhaustive]

@@ -78,6 +78,7 @@ impl Default for SolveOptions {
     }
 }
 
+// Same shape as FrameHamiltonian: each stage's plain data, other fields.
 /// Result of one propagation. Populations are |c_k|^2 (amplitudes) or
 /// rho_kk (density matrix) in the bare basis.
 #[derive(Debug, Clone, PartialEq)]

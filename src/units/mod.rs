@@ -84,7 +84,7 @@ const CLASSIFY_ORDER: &[Kind] = &[
 ];
 
 impl Kind {
-    fn table(self) -> &'static [UnitDef] {
+    fn table(self) -> Table {
         match self {
             Kind::Energy => ENERGY_UNITS,
             Kind::Time => TIME_UNITS,
@@ -100,6 +100,11 @@ impl Kind {
             Kind::Angle => ANGLE_UNITS,
             Kind::MagneticField => FIELD_UNITS,
         }
+    }
+
+    /// The accepted units, in the order they are listed.
+    fn entries(self) -> impl Iterator<Item = &'static UnitDef> {
+        self.table().iter().flat_map(|group| group.iter())
     }
 
     /// "an energy", "a time", ... as used in messages.
@@ -148,8 +153,7 @@ impl Kind {
 
     /// Canonical spellings of the accepted units, in the order they are listed.
     pub fn units(self) -> Vec<&'static str> {
-        self.table()
-            .iter()
+        self.entries()
             .filter_map(|u| u.names.first().copied())
             .collect()
     }
@@ -166,8 +170,7 @@ impl Kind {
 
     /// Factor to SI of a unit spelling, if this kind accepts it.
     fn factor_of(self, unit: &str) -> Option<f64> {
-        self.table()
-            .iter()
+        self.entries()
             .find(|u| u.names.contains(&unit))
             .map(|u| u.factor)
     }
@@ -212,6 +215,14 @@ fn numeric_prefix_len(s: &str) -> usize {
     if digits == 0 {
         return 0;
     }
+    exponent_end(b, i)
+}
+
+/// Where an exponent (`e` or `E`, an optional sign, at least one digit)
+/// starting at byte `i` of `b` ends; `i` when none starts there.
+// Same scan as the exponent of scan/axis.rs `split_number`: that copy can
+// call this one (scan/ was being edited elsewhere when this was shared).
+pub(crate) fn exponent_end(b: &[u8], i: usize) -> usize {
     if i < b.len() && (b[i] == b'e' || b[i] == b'E') {
         let mut j = i + 1;
         if j < b.len() && (b[j] == b'+' || b[j] == b'-') {
@@ -222,7 +233,7 @@ fn numeric_prefix_len(s: &str) -> usize {
             j += 1;
         }
         if j > exp_start {
-            i = j;
+            return j;
         }
     }
     i

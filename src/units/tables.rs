@@ -12,340 +12,117 @@ pub(super) struct UnitDef {
     pub(super) factor: f64,
 }
 
-pub(super) const ENERGY_UNITS: &[UnitDef] = &[
-    UnitDef {
-        names: &["cm^-1", "cm-1", "1/cm"],
-        factor: TWO_PI * C * 100.0,
-    },
-    UnitDef {
-        names: &["eV"],
-        factor: E_CHARGE / HBAR,
-    },
-    UnitDef {
-        names: &["meV"],
-        factor: 1e-3 * E_CHARGE / HBAR,
-    },
-    UnitDef {
-        names: &["Hz"],
-        factor: TWO_PI,
-    },
-    UnitDef {
-        names: &["kHz"],
-        factor: TWO_PI * 1e3,
-    },
-    UnitDef {
-        names: &["MHz"],
-        factor: TWO_PI * 1e6,
-    },
-    UnitDef {
-        names: &["GHz"],
-        factor: TWO_PI * 1e9,
-    },
-    UnitDef {
-        names: &["THz"],
-        factor: TWO_PI * 1e12,
-    },
-    UnitDef {
-        names: &["J"],
-        factor: 1.0 / HBAR,
-    },
+/// A kind's table: groups of entries, read in order (the groups shared by
+/// several kinds are written once below).
+pub(super) type Table = &'static [&'static [UnitDef]];
+
+const fn unit(names: &'static [&'static str], factor: f64) -> UnitDef {
+    UnitDef { names, factor }
+}
+
+/// Wavenumbers as angular frequencies.
+const WAVENUMBER: &[UnitDef] = &[unit(&["cm^-1", "cm-1", "1/cm"], TWO_PI * C * 100.0)];
+
+/// Cyclic frequencies from Hz to GHz (the factor carries 2 pi).
+const HZ_TO_GHZ: &[UnitDef] = &[
+    unit(&["Hz"], TWO_PI),
+    unit(&["kHz"], TWO_PI * 1e3),
+    unit(&["MHz"], TWO_PI * 1e6),
+    unit(&["GHz"], TWO_PI * 1e9),
 ];
 
-pub(super) const TIME_UNITS: &[UnitDef] = &[
-    UnitDef {
-        names: &["s"],
-        factor: 1.0,
-    },
-    UnitDef {
-        names: &["ms"],
-        factor: 1e-3,
-    },
-    UnitDef {
-        names: &["us"],
-        factor: 1e-6,
-    },
-    UnitDef {
-        names: &["ns"],
-        factor: 1e-9,
-    },
-    UnitDef {
-        names: &["ps"],
-        factor: 1e-12,
-    },
-    UnitDef {
-        names: &["fs"],
-        factor: 1e-15,
-    },
+const THZ: &[UnitDef] = &[unit(&["THz"], TWO_PI * 1e12)];
+
+/// Rates per second to per nanosecond.
+const PER_S_TO_PER_NS: &[UnitDef] = &[
+    unit(&["s^-1", "1/s", "s-1"], 1.0),
+    unit(&["ms^-1", "1/ms", "ms-1"], 1e3),
+    unit(&["us^-1", "1/us", "us-1"], 1e6),
+    unit(&["ns^-1", "1/ns", "ns-1"], 1e9),
 ];
 
-pub(super) const FREQUENCY_UNITS: &[UnitDef] = &[
-    UnitDef {
-        names: &["Hz"],
-        factor: TWO_PI,
-    },
-    UnitDef {
-        names: &["kHz"],
-        factor: TWO_PI * 1e3,
-    },
-    UnitDef {
-        names: &["MHz"],
-        factor: TWO_PI * 1e6,
-    },
-    UnitDef {
-        names: &["GHz"],
-        factor: TWO_PI * 1e9,
-    },
-    UnitDef {
-        names: &["THz"],
-        factor: TWO_PI * 1e12,
-    },
+pub(super) const ENERGY_UNITS: Table = &[
+    WAVENUMBER,
+    &[
+        unit(&["eV"], E_CHARGE / HBAR),
+        unit(&["meV"], 1e-3 * E_CHARGE / HBAR),
+    ],
+    HZ_TO_GHZ,
+    THZ,
+    &[unit(&["J"], 1.0 / HBAR)],
 ];
 
-pub(super) const CARRIER_UNITS: &[UnitDef] = &[
-    UnitDef {
-        names: &["Hz"],
-        factor: TWO_PI,
-    },
-    UnitDef {
-        names: &["kHz"],
-        factor: TWO_PI * 1e3,
-    },
-    UnitDef {
-        names: &["MHz"],
-        factor: TWO_PI * 1e6,
-    },
-    UnitDef {
-        names: &["GHz"],
-        factor: TWO_PI * 1e9,
-    },
-    UnitDef {
-        names: &["THz"],
-        factor: TWO_PI * 1e12,
-    },
-    UnitDef {
-        names: &["PHz"],
-        factor: TWO_PI * 1e15,
-    },
-    UnitDef {
-        names: &["cm^-1", "cm-1", "1/cm"],
-        factor: TWO_PI * C * 100.0,
-    },
-];
+// Same shape as LENGTH_UNITS: SI prefixes written out, so that every spelling can be read.
+pub(super) const TIME_UNITS: Table = &[&[
+    unit(&["s"], 1.0),
+    unit(&["ms"], 1e-3),
+    unit(&["us"], 1e-6),
+    unit(&["ns"], 1e-9),
+    unit(&["ps"], 1e-12),
+    unit(&["fs"], 1e-15),
+]];
 
-pub(super) const LENGTH_UNITS: &[UnitDef] = &[
-    UnitDef {
-        names: &["m"],
-        factor: 1.0,
-    },
-    UnitDef {
-        names: &["mm"],
-        factor: 1e-3,
-    },
-    UnitDef {
-        names: &["um"],
-        factor: 1e-6,
-    },
-    UnitDef {
-        names: &["nm"],
-        factor: 1e-9,
-    },
-    UnitDef {
-        names: &["pm"],
-        factor: 1e-12,
-    },
-];
+pub(super) const FREQUENCY_UNITS: Table = &[HZ_TO_GHZ, THZ];
 
-pub(super) const DIPOLE_UNITS: &[UnitDef] = &[
-    UnitDef {
-        names: &["ea0", "e a0", "a.u."],
-        factor: EA0,
-    },
-    UnitDef {
-        names: &["D", "Debye"],
-        factor: DEBYE,
-    },
-    UnitDef {
-        names: &["C m", "C*m", "C.m", "C·m", "Cm"],
-        factor: 1.0,
-    },
-];
+pub(super) const CARRIER_UNITS: Table =
+    &[HZ_TO_GHZ, THZ, &[unit(&["PHz"], TWO_PI * 1e15)], WAVENUMBER];
 
-pub(super) const RATE_UNITS: &[UnitDef] = &[
-    UnitDef {
-        names: &["s^-1", "1/s", "s-1"],
-        factor: 1.0,
-    },
-    UnitDef {
-        names: &["ms^-1", "1/ms", "ms-1"],
-        factor: 1e3,
-    },
-    UnitDef {
-        names: &["us^-1", "1/us", "us-1"],
-        factor: 1e6,
-    },
-    UnitDef {
-        names: &["ns^-1", "1/ns", "ns-1"],
-        factor: 1e9,
-    },
-];
+pub(super) const LENGTH_UNITS: Table = &[&[
+    unit(&["m"], 1.0),
+    unit(&["mm"], 1e-3),
+    unit(&["um"], 1e-6),
+    unit(&["nm"], 1e-9),
+    unit(&["pm"], 1e-12),
+]];
+
+pub(super) const DIPOLE_UNITS: Table = &[&[
+    unit(&["ea0", "e a0", "a.u."], EA0),
+    unit(&["D", "Debye"], DEBYE),
+    unit(&["C m", "C*m", "C.m", "C·m", "Cm"], 1.0),
+]];
+
+pub(super) const RATE_UNITS: Table = &[PER_S_TO_PER_NS];
 
 /// A damping rate: a rate in s^-1 (as written), or a cyclic frequency in Hz
 /// units (gamma / 2 pi, so the factor carries 2 pi).
-pub(super) const DAMPING_UNITS: &[UnitDef] = &[
-    UnitDef {
-        names: &["s^-1", "1/s", "s-1"],
-        factor: 1.0,
-    },
-    UnitDef {
-        names: &["ms^-1", "1/ms", "ms-1"],
-        factor: 1e3,
-    },
-    UnitDef {
-        names: &["us^-1", "1/us", "us-1"],
-        factor: 1e6,
-    },
-    UnitDef {
-        names: &["ns^-1", "1/ns", "ns-1"],
-        factor: 1e9,
-    },
-    UnitDef {
-        names: &["Hz"],
-        factor: TWO_PI,
-    },
-    UnitDef {
-        names: &["kHz"],
-        factor: TWO_PI * 1e3,
-    },
-    UnitDef {
-        names: &["MHz"],
-        factor: TWO_PI * 1e6,
-    },
-    UnitDef {
-        names: &["GHz"],
-        factor: TWO_PI * 1e9,
-    },
-];
+pub(super) const DAMPING_UNITS: Table = &[PER_S_TO_PER_NS, HZ_TO_GHZ];
 
-pub(super) const INTENSITY_UNITS: &[UnitDef] = &[
-    UnitDef {
-        names: &["W/cm^2", "W/cm2"],
-        factor: 1e4,
-    },
-    UnitDef {
-        names: &["W/m^2", "W/m2"],
-        factor: 1.0,
-    },
-    UnitDef {
-        names: &["uW/cm^2", "uW/cm2"],
-        factor: 1e-2,
-    },
-    UnitDef {
-        names: &["mW/cm^2", "mW/cm2"],
-        factor: 10.0,
-    },
-    UnitDef {
-        names: &["kW/cm^2", "kW/cm2"],
-        factor: 1e7,
-    },
-    UnitDef {
-        names: &["MW/cm^2", "MW/cm2"],
-        factor: 1e10,
-    },
-    UnitDef {
-        names: &["GW/cm^2", "GW/cm2"],
-        factor: 1e13,
-    },
-    UnitDef {
-        names: &["TW/cm^2", "TW/cm2"],
-        factor: 1e16,
-    },
-];
+pub(super) const INTENSITY_UNITS: Table = &[&[
+    unit(&["W/cm^2", "W/cm2"], 1e4),
+    unit(&["W/m^2", "W/m2"], 1.0),
+    unit(&["uW/cm^2", "uW/cm2"], 1e-2),
+    unit(&["mW/cm^2", "mW/cm2"], 10.0),
+    unit(&["kW/cm^2", "kW/cm2"], 1e7),
+    unit(&["MW/cm^2", "MW/cm2"], 1e10),
+    unit(&["GW/cm^2", "GW/cm2"], 1e13),
+    unit(&["TW/cm^2", "TW/cm2"], 1e16),
+]];
 
-pub(super) const POWER_UNITS: &[UnitDef] = &[
-    UnitDef {
-        names: &["W"],
-        factor: 1.0,
-    },
-    UnitDef {
-        names: &["mW"],
-        factor: 1e-3,
-    },
-    UnitDef {
-        names: &["uW"],
-        factor: 1e-6,
-    },
-    UnitDef {
-        names: &["nW"],
-        factor: 1e-9,
-    },
-    UnitDef {
-        names: &["kW"],
-        factor: 1e3,
-    },
-];
+pub(super) const POWER_UNITS: Table = &[&[
+    unit(&["W"], 1.0),
+    unit(&["mW"], 1e-3),
+    unit(&["uW"], 1e-6),
+    unit(&["nW"], 1e-9),
+    unit(&["kW"], 1e3),
+]];
 
-pub(super) const CHIRP_UNITS: &[UnitDef] = &[
-    UnitDef {
-        names: &["Hz/s"],
-        factor: TWO_PI,
-    },
-    UnitDef {
-        names: &["kHz/us"],
-        factor: TWO_PI * 1e9,
-    },
-    UnitDef {
-        names: &["MHz/us"],
-        factor: TWO_PI * 1e12,
-    },
-    UnitDef {
-        names: &["MHz/ns"],
-        factor: TWO_PI * 1e15,
-    },
-    UnitDef {
-        names: &["GHz/ns"],
-        factor: TWO_PI * 1e18,
-    },
-    UnitDef {
-        names: &["GHz/ps"],
-        factor: TWO_PI * 1e21,
-    },
-    UnitDef {
-        names: &["THz/ps"],
-        factor: TWO_PI * 1e24,
-    },
-];
+pub(super) const CHIRP_UNITS: Table = &[&[
+    unit(&["Hz/s"], TWO_PI),
+    unit(&["kHz/us"], TWO_PI * 1e9),
+    unit(&["MHz/us"], TWO_PI * 1e12),
+    unit(&["MHz/ns"], TWO_PI * 1e15),
+    unit(&["GHz/ns"], TWO_PI * 1e18),
+    unit(&["GHz/ps"], TWO_PI * 1e21),
+    unit(&["THz/ps"], TWO_PI * 1e24),
+]];
 
-pub(super) const ANGLE_UNITS: &[UnitDef] = &[
-    UnitDef {
-        names: &["pi", "π"],
-        factor: PI,
-    },
-    UnitDef {
-        names: &["rad"],
-        factor: 1.0,
-    },
-];
+pub(super) const ANGLE_UNITS: Table = &[&[unit(&["pi", "π"], PI), unit(&["rad"], 1.0)]];
 
-/// Magnetic flux density: tesla and gauss (1 G = 1e-4 T).
-pub(super) const FIELD_UNITS: &[UnitDef] = &[
-    UnitDef {
-        names: &["G"],
-        factor: 1e-4,
-    },
-    UnitDef {
-        names: &["mG"],
-        factor: 1e-7,
-    },
-    UnitDef {
-        names: &["T"],
-        factor: 1.0,
-    },
-    UnitDef {
-        names: &["mT"],
-        factor: 1e-3,
-    },
-    UnitDef {
-        names: &["uT", "µT", "μT"],
-        factor: 1e-6,
-    },
-];
+/// Magnetic flux density: gauss and tesla (1 G = 1e-4 T).
+pub(super) const FIELD_UNITS: Table = &[&[
+    unit(&["G"], 1e-4),
+    unit(&["mG"], 1e-7),
+    unit(&["T"], 1.0),
+    unit(&["mT"], 1e-3),
+    unit(&["uT", "µT", "μT"], 1e-6),
+]];

@@ -1,26 +1,24 @@
 //! The Blackman window: f = a0 - a1 cos(2 pi x) + a2 cos(4 pi x),
 //! x = (t - start) / duration in [0, 1], with (a0, a1, a2) = [`BLACKMAN`].
 //!
-//! Owns: every formula of this one shape (value, centre, area, support,
-//! lengths, spectrum, stretch, parameter check). Must not: know of other
-//! shapes, of units or of the scheme format.
+//! Owns: every formula of this one profile (value, area, shortest feature,
+//! FWHM, spectrum); what all pulses of finite support share is in
+//! `finite.rs`. Must not: know of other shapes, of units or of the scheme
+//! format.
 
 use std::f64::consts::PI;
 
-use super::{cap_line, sine_over_poles, Envelope, Shape};
+use super::finite::{Finite, Profile};
+use super::{cap_line, sine_over_poles, Envelope};
 
 /// Blackman window coefficients (a0, a1, a2).
 pub const BLACKMAN: (f64, f64, f64) = (0.42, 0.5, 0.08);
 
-/// Parameters of a Blackman pulse (s).
-#[derive(Clone, Copy)]
-pub(crate) struct Blackman {
-    pub start: f64,
-    pub duration: f64,
-}
+/// The Blackman profile.
+pub(crate) struct Blackman;
 
 /// Coefficients of the transform numerator
-/// `N(nu) = c4 nu^4 + c2 a^2 nu^2 + c0 a^4` (see [`Blackman::spectrum`]).
+/// `N(nu) = c4 nu^4 + c2 a^2 nu^2 + c0 a^4` (see the spectrum of [`Blackman`]).
 fn numerator() -> (f64, f64, f64) {
     let (a0, a1, a2) = BLACKMAN;
     let mut c4 = a0 - a1 + a2;
@@ -50,12 +48,17 @@ pub(crate) fn fwhm_fraction() -> f64 {
     1.0 - 2.0 * 0.5 * (lo + hi)
 }
 
-impl Shape for Blackman {
+// Same header as rectangular.rs and sin2.rs (NAME, variant, value): one Profile impl each.
+impl Profile for Blackman {
     const NAME: &'static str = "blackman";
 
+    fn variant(start: f64, duration: f64) -> Envelope {
+        Envelope::Blackman { start, duration }
+    }
+
     #[inline]
-    fn value(&self, t: f64) -> f64 {
-        let x = (t - self.start) / self.duration;
+    fn value(p: &Finite<Self>, t: f64) -> f64 {
+        let x = (t - p.start) / p.duration;
         if (0.0..=1.0).contains(&x) {
             let (a0, a1, a2) = BLACKMAN;
             a0 - a1 * (2.0 * PI * x).cos() + a2 * (4.0 * PI * x).cos()
@@ -64,75 +67,37 @@ impl Shape for Blackman {
         }
     }
 
-    fn center(&self) -> f64 {
-        self.start + 0.5 * self.duration
+    fn area(p: &Finite<Self>) -> f64 {
+        BLACKMAN.0 * p.duration
     }
 
-    fn area(&self) -> f64 {
-        BLACKMAN.0 * self.duration
-    }
-
-    fn support(&self) -> (f64, f64) {
-        (self.start, self.start + self.duration)
-    }
-
-    fn shortest_feature(&self) -> f64 {
-        self.duration / 4.0
-    }
-
-    fn breakpoints(&self) -> Vec<f64> {
-        vec![self.start, self.start + self.duration]
+    fn shortest_feature(p: &Finite<Self>) -> f64 {
+        p.duration / 4.0
     }
 
     /// About `0.2876 D` ([`fwhm_fraction`]).
-    fn intensity_fwhm(&self) -> Option<f64> {
-        Some(self.duration * fwhm_fraction())
-    }
-
-    fn length(&self) -> f64 {
-        self.duration
-    }
-
-    fn span(&self) -> Option<f64> {
-        Some(self.duration)
+    fn intensity_fwhm(p: &Finite<Self>) -> Option<f64> {
+        Some(p.duration * fwhm_fraction())
     }
 
     /// `f = a0 + a1 cos(a u) + a2 cos(2 a u)` on `|u| < D/2`: five shifted
     /// rectangle transforms collapsing to
     /// `2 sin(nu D/2) N(nu) / (nu (nu^2 - a^2)(nu^2 - 4 a^2))` with
     /// `N = (a0 - a1 + a2) nu^4 + (-5 a0 + 4 a1 - a2) a^2 nu^2 + 4 a0 a^4`.
-    fn spectrum(&self, nu: f64) -> Option<f64> {
-        let a = 2.0 * PI / self.duration;
+    fn spectrum(p: &Finite<Self>, nu: f64) -> Option<f64> {
+        let a = 2.0 * PI / p.duration;
         let (c4, c2, c0) = numerator();
         let n = c4 * nu.powi(4) + c2 * a * a * nu * nu + c0 * a.powi(4);
-        Some(sine_over_poles(
-            nu,
-            self.duration,
-            &[0, 1, -1, 2, -2],
-            2.0 * n,
-        ))
+        Some(sine_over_poles(nu, p.duration, &[0, 1, -1, 2, -2], 2.0 * n))
     }
 
     /// The collapsed form with the sine replaced by 1, capped by the area.
-    fn spectrum_bound(&self, nu: f64) -> Option<f64> {
+    fn spectrum_bound(p: &Finite<Self>, nu: f64) -> Option<f64> {
         let nu = nu.abs();
-        let a = 2.0 * PI / self.duration;
+        let a = 2.0 * PI / p.duration;
         let (c4, c2, c0) = numerator();
         let n = c4 * nu.powi(4) + c2 * a * a * nu * nu + c0 * a.powi(4);
         let line = 2.0 * n.abs() / (nu * (nu * nu - a * a).abs() * (nu * nu - 4.0 * a * a).abs());
-        Some(cap_line(line, self.area().abs()))
-    }
-
-    fn stretched(&self, s: f64) -> Envelope {
-        let (start, duration) = super::stretched_span(self.start, self.duration, self.center(), s);
-        Envelope::Blackman { start, duration }
-    }
-
-    fn has_oscillating_line(&self) -> bool {
-        true
-    }
-
-    fn check(&self) -> Result<(), String> {
-        super::check_span(self.start, self.duration)
+        Some(cap_line(line, Self::area(p).abs()))
     }
 }

@@ -14,10 +14,13 @@
 //! public struct-like variants (the solver, the estimator, tests and schemes
 //! match on them), and each of its methods only builds the shape's struct
 //! from the variant's fields (`with_shape!`, static dispatch, no allocation)
-//! and calls the trait. Adding a shape: one file, one variant, one arm of
-//! `with_shape!`.
+//! and calls the trait. The pulses of finite support (rectangular, sin2,
+//! Blackman) share one `Shape` impl (`finite.rs`, `Finite<P>`); their files
+//! hold only the profile `P`. Adding a shape: one file, one variant, one arm
+//! of `with_shape!`.
 
 mod blackman;
+mod finite;
 mod gaussian;
 mod rectangular;
 mod samples;
@@ -82,8 +85,13 @@ pub(crate) trait Shape {
     /// Closed-form spectrum over all time (None: no closed form).
     fn spectrum(&self, nu: f64) -> Option<f64>;
     /// Upper bound on |F(nu)| following the envelope of an oscillating line,
-    /// capped by the area (None: no closed form).
-    fn spectrum_bound(&self, nu: f64) -> Option<f64>;
+    /// capped by the area (None: no closed form). By default, for a spectrum
+    /// that does not oscillate: its modulus.
+    fn spectrum_bound(&self, nu: f64) -> Option<f64> {
+        self.spectrum(nu.abs())
+            .filter(|f| f.is_finite())
+            .map(f64::abs)
+    }
     /// The same shape stretched in time by `s` about its centre.
     fn stretched(&self, s: f64) -> super::Envelope;
     /// Parameters finite, lengths positive, samples well formed.
@@ -100,10 +108,7 @@ macro_rules! with_shape {
     ($env:expr, $s:ident => $body:expr) => {
         match $env {
             Envelope::Rectangular { start, duration } => {
-                let $s = rectangular::Rectangular {
-                    start: *start,
-                    duration: *duration,
-                };
+                let $s = finite::Finite::<rectangular::Rectangular>::new(*start, *duration);
                 $body
             }
             Envelope::Gaussian { center, sigma } => {
@@ -121,17 +126,11 @@ macro_rules! with_shape {
                 $body
             }
             Envelope::Sin2 { start, duration } => {
-                let $s = sin2::Sin2 {
-                    start: *start,
-                    duration: *duration,
-                };
+                let $s = finite::Finite::<sin2::Sin2>::new(*start, *duration);
                 $body
             }
             Envelope::Blackman { start, duration } => {
-                let $s = blackman::Blackman {
-                    start: *start,
-                    duration: *duration,
-                };
+                let $s = finite::Finite::<blackman::Blackman>::new(*start, *duration);
                 $body
             }
             Envelope::Samples { times, values } => {
@@ -255,19 +254,6 @@ fn finite(x: f64, what: &str) -> Result<(), String> {
     } else {
         Err(format!("{what} must be finite, got {x}"))
     }
-}
-
-/// The start and duration of a pulse of finite support stretched by `s`
-/// about its centre `c` (the remedies' longer pulse of the same shape).
-fn stretched_span(start: f64, duration: f64, c: f64, s: f64) -> (f64, f64) {
-    (c + s * (start - c), duration * s)
-}
-
-/// The checks of a pulse of finite support: a finite start, a positive
-/// finite duration.
-fn check_span(start: f64, duration: f64) -> Result<(), String> {
-    finite(start, "start")?;
-    positive(duration, "duration")
 }
 
 /// `Ok` for a positive finite number, else a message naming it.

@@ -126,10 +126,6 @@ impl Shape for Samples<'_> {
         None
     }
 
-    fn spectrum_bound(&self, _nu: f64) -> Option<f64> {
-        None
-    }
-
     fn stretched(&self, s: f64) -> Envelope {
         let c = self.center();
         Envelope::Samples {

@@ -34,6 +34,7 @@ pub fn sech_intensity_fwhm(tau: f64) -> f64 {
     2.0 * 2f64.sqrt().acosh() * tau
 }
 
+// Same shape as gaussian.rs: the other smooth shape, each method its own formula.
 impl Shape for Sech {
     const NAME: &'static str = "sech";
 
@@ -81,13 +82,6 @@ impl Shape for Sech {
     /// `pi tau sech(pi nu tau / 2)`.
     fn spectrum(&self, nu: f64) -> Option<f64> {
         Some(PI * self.tau * sech(PI * nu * self.tau / 2.0))
-    }
-
-    /// The spectrum does not oscillate: its modulus.
-    fn spectrum_bound(&self, nu: f64) -> Option<f64> {
-        self.spectrum(nu.abs())
-            .filter(|f| f.is_finite())
-            .map(f64::abs)
     }
 
     fn stretched(&self, s: f64) -> Envelope {

@@ -228,6 +228,7 @@ pub fn inspect_doc(r: &InspectReport) -> Doc {
             ]
         })
         .collect();
+    // Same first cells as doc/vet.rs excluded drives: the two tables go on with other columns.
     let drives = r
         .drives
         .iter()
@@ -272,6 +273,7 @@ pub fn inspect_doc(r: &InspectReport) -> Doc {
             ]
         })
         .collect();
+    // Same shape per section (heading, table, notes): each is one literal of its own data.
     let mut sections = vec![
         Section {
             heading: "Levels".into(),

@@ -287,6 +287,7 @@ fn excluded_section(r: &VetReport) -> Option<Section> {
     if r.excluded.is_empty() {
         return None;
     }
+    // Same first cells as the inspect drive rows (doc/mod.rs): other columns follow.
     let rows = r
         .excluded
         .iter()

@@ -159,6 +159,7 @@ impl<'a> Ctx<'a> {
         }
     }
 
+    // Same signature as `quantity`, which it calls: the required form of it.
     /// A required quantity: pushes a message when missing.
     pub(super) fn req_quantity(
         &mut self,

@@ -50,6 +50,7 @@ pub(super) enum Strength {
     },
 }
 
+// Same shape as yaml.rs YamlError: plain fields of a different record.
 /// A field as far as it validated.
 pub(super) struct FieldInfo {
     pub id: String,
@@ -61,6 +62,7 @@ pub(super) struct FieldInfo {
     pub rwa: bool,
 }
 
+// Same steps as the level list of levels.rs (count limit, first valid id): other records.
 /// The field ids (needed by the couplings' field lists before the fields
 /// themselves are validated); None when there are too many fields.
 pub(super) fn field_ids<'r>(raw: &'r RawScheme, ctx: &mut Ctx) -> Option<FieldIds<'r>> {
@@ -458,6 +460,7 @@ fn by_reference(
         );
         return None;
     }
+    // Same ctx.push shape as the zero-dipole message above: each names its own key and text.
     let ref_abs = matches!(dref, Dipole::Absolute(_));
     for &k in my {
         let ci = drives[k].coupling;

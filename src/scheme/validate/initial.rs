@@ -106,12 +106,7 @@ fn populations(
             ok = false;
             continue;
         };
-        if seen.contains(&i) {
-            ctx.push(
-                &path,
-                "each level once",
-                format!("'{}' a second time", id.0),
-            );
+        if repeated(ctx, &seen, i, &path, "each level once", id) {
             ok = false;
             continue;
         }
@@ -150,13 +145,10 @@ pub(super) fn targets(
         let Some(i) = levels.lookup(ctx, &path, id) else {
             continue;
         };
-        if targets.contains(&i) {
-            ctx.push(
-                &path,
-                "each target once",
-                format!("'{}' a second time", id.0),
-            );
-        } else if initial[i] > 0.0 {
+        if repeated(ctx, &targets, i, &path, "each target once", id) {
+            continue;
+        }
+        if initial[i] > 0.0 {
             ctx.push(
                 &path,
                 "a target level that is not initially populated",
@@ -167,6 +159,22 @@ pub(super) fn targets(
         }
     }
     targets
+}
+
+/// Whether level `i` is among those already `seen`; if so, says so at `path`.
+fn repeated(
+    ctx: &mut Ctx,
+    seen: &[usize],
+    i: usize,
+    path: &KeyPath,
+    expected: &str,
+    id: &Id,
+) -> bool {
+    let again = seen.contains(&i);
+    if again {
+        ctx.push(path, expected, format!("'{}' a second time", id.0));
+    }
+    again
 }
 
 /// The default spectator tolerance.

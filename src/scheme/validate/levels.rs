@@ -92,6 +92,7 @@ impl Levels {
     }
 }
 
+// Same steps as fields.rs field_ids (count limit, first valid id): other records.
 /// The `levels:` map; None (with a message) when it is missing, empty or
 /// too long, since nothing else can be checked without levels (a scheme
 /// with `manifolds:` may have no `levels:`).

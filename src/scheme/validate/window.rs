@@ -64,23 +64,13 @@ pub(super) fn solver(raw: &RawScheme, ctx: &mut Ctx) -> SolverSettings {
         return solver;
     };
     let pos = |v: f64| v > 0.0;
-    if let Some(v) = ctx.bare(
-        &sp.k("rtol"),
-        &s.rtol,
-        "a relative tolerance",
-        pos,
-        "(positive)",
-    ) {
-        solver.rtol = v;
-    }
-    if let Some(v) = ctx.bare(
-        &sp.k("atol"),
-        &s.atol,
-        "an absolute tolerance",
-        pos,
-        "(positive)",
-    ) {
-        solver.atol = v;
+    for (key, value, what, slot) in [
+        ("rtol", &s.rtol, "a relative tolerance", &mut solver.rtol),
+        ("atol", &s.atol, "an absolute tolerance", &mut solver.atol),
+    ] {
+        if let Some(v) = ctx.bare(&sp.k(key), value, what, pos, "(positive)") {
+            *slot = v;
+        }
     }
     if let Some(m) = &s.method {
         match m.text().as_str() {

@@ -85,6 +85,7 @@ impl Equation for Amplitudes<'_> {
         2.0 * (y[2 * k] * dy[2 * k] + y[2 * k + 1] * dy[2 * k + 1])
     }
 
+    // Same signature as the default in equation.rs (and peaks/tests.rs): an override repeats it.
     /// Hermite interpolation of the amplitude, then its square.
     #[inline(always)]
     fn interpolated_population(

@@ -26,6 +26,7 @@ pub(super) struct ScaledTerm {
     pub residual: Option<(f64, f64)>,
 }
 
+// Same shape as FrameHamiltonian: its window-time copy, other fields.
 /// The frame Hamiltonian of one model, scaled to window time.
 pub(super) struct ScaledFrame<'a> {
     pub model: &'a Model,
