@@ -461,6 +461,50 @@ fn equal_g_factors_keep_the_coupled_states_under_a_huge_offset() {
 }
 
 #[test]
+fn every_small_manifold_is_complete_and_consistent() {
+    // Internal consistency over J <= 3, I <= 7/2 (common practice, no
+    // source): one sublevel per (F, m_F), unit norm, energies summing to
+    // zero, and zero-field energies equal to the closed form.
+    let constants = [(1.0, 0.3), (-0.7, 0.0), (0.0, 0.0), (0.2, -1.1)];
+    for two_j in 0..=6 {
+        for two_i in 0..=7 {
+            for (k, &(a, b)) in constants.iter().enumerate() {
+                let m = Manifold {
+                    two_j,
+                    two_i,
+                    a: a * 100.0 * MHZ,
+                    b: b * 100.0 * MHZ,
+                    g_j: 1.1,
+                    g_i: -0.002,
+                };
+                let hf = hyperfine_levels(&m).unwrap();
+                for field in [0.0, 1e-3 * f64::from(u8::try_from(k).unwrap()), 7.0] {
+                    let levels = sublevels(&m, field).unwrap();
+                    let mut labels = Vec::new();
+                    for l in &hf {
+                        for two_m_f in (-l.two_f..=l.two_f).step_by(2) {
+                            labels.push((l.two_f, two_m_f));
+                        }
+                    }
+                    let got: Vec<_> = levels.iter().map(|s| (s.two_f, s.two_m_f)).collect();
+                    assert_eq!(got, labels, "{m:?} {field}");
+                    let sum: f64 = levels.iter().map(|s| s.energy).sum();
+                    let scale: f64 = levels.iter().map(|s| s.energy.abs()).sum::<f64>() + 1.0;
+                    assert!(sum.abs() < 1e-12 * scale, "{m:?} {field}");
+                    for s in &levels {
+                        assert!((overlap(s, s) - 1.0).abs() < 1e-12, "{m:?} {field}");
+                        if field == 0.0 {
+                            let e = hf.iter().find(|l| l.two_f == s.two_f).unwrap().energy;
+                            assert!((s.energy - e).abs() < 1e-12 * (scale + 200.0 * MHZ));
+                        }
+                    }
+                }
+            }
+        }
+    }
+}
+
+#[test]
 fn bad_inputs_are_errors_not_panics() {
     let m = rb87_s12();
     let neg = Manifold { two_j: -1, ..m };
