@@ -24,8 +24,10 @@
 //!   [`DEGENERACY_REL`] times the largest |E_F| of the block are ordered by F
 //!   ascending; eigenvalues of a block closer than [`DEGENERACY_REL`] times its
 //!   largest |eigenvalue| form a cluster whose basis is fixed by diagonalising
-//!   I.J inside it, ascending I.J first. I.J = K/2 grows with F, so at zero
-//!   field the vectors are the coupled states even when A = B = 0.
+//!   I.J inside it; the cluster's labels go to those vectors in ascending F
+//!   for ascending I.J (I.J = K/2 grows with F). So at zero field the vectors
+//!   are the coupled states even when A = B = 0, and a constant offset that
+//!   swamps the hyperfine splitting (g_J = g_I) keeps every F its own state.
 //! * Phase: every vector has a positive overlap with the coupled state
 //!   |F m_F> = sum <J m_J; I m_I | F m_F> |J m_J I m_I> (Clebsch-Gordan, J
 //!   first, I second, Condon-Shortley). Where that overlap is below
@@ -33,6 +35,8 @@
 //!   m_J-ascending order among equals) is made positive instead.
 //! * Output order: F ascending, then m_F ascending; components in m_J
 //!   ascending order, amplitudes of magnitude <= [`AMPLITUDE_FLOOR`] omitted.
+
+use std::ops::Range;
 
 use nalgebra::{DMatrix, DVector, SymmetricEigen};
 
@@ -276,7 +280,7 @@ fn block_hamiltonian(
 
 /// Groups of consecutive entries of an ascending list whose neighbours are
 /// within `DEGENERACY_REL` of the largest magnitude (chained).
-fn clusters(sorted: &[f64]) -> Vec<std::ops::Range<usize>> {
+fn clusters(sorted: &[f64]) -> Vec<Range<usize>> {
     let scale = sorted.iter().fold(0.0_f64, |s, v| s.max(v.abs()));
     let tol = DEGENERACY_REL * scale;
     let mut out = Vec::new();
@@ -306,20 +310,19 @@ fn block_labels(m: &Manifold, two_m_f: i32) -> Vec<i32> {
     labels
 }
 
-/// Eigenpairs of one block, eigenvalues ascending; degenerate clusters
-/// resolved by I.J (module docs).
-fn eigenpairs(
-    h: DMatrix<f64>,
-    x: &DMatrix<f64>,
-    two_m_f: i32,
-) -> Result<Vec<(f64, DVector<f64>)>, StructureError> {
+/// Eigenpairs of one block, eigenvalues ascending, and the clusters of
+/// degenerate ones, each resolved by I.J ascending (module docs).
+type Pairs = (Vec<(f64, DVector<f64>)>, Vec<Range<usize>>);
+
+fn eigenpairs(h: DMatrix<f64>, x: &DMatrix<f64>, two_m_f: i32) -> Result<Pairs, StructureError> {
     let eig = SymmetricEigen::try_new(h.clone(), f64::EPSILON, 100_000)
         .ok_or(StructureError::NoConvergence { two_m_f })?;
     let mut order: Vec<usize> = (0..eig.eigenvalues.len()).collect();
     order.sort_by(|&p, &q| eig.eigenvalues[p].total_cmp(&eig.eigenvalues[q]));
     let values: Vec<f64> = order.iter().map(|&k| eig.eigenvalues[k]).collect();
+    let groups = clusters(&values);
     let mut pairs = Vec::with_capacity(values.len());
-    for range in clusters(&values) {
+    for range in groups.iter().cloned() {
         if range.len() == 1 {
             let k = order[range.start];
             pairs.push((values[range.start], eig.eigenvectors.column(k).into_owned()));
@@ -338,7 +341,7 @@ fn eigenpairs(
             pairs.push((energy, w));
         }
     }
-    Ok(pairs)
+    Ok((pairs, groups.into_iter().filter(|r| r.len() > 1).collect()))
 }
 
 /// The coupled state |F m_F> on the states of its block.
@@ -378,8 +381,13 @@ fn block_sublevels(
     if h.iter().any(|v| !v.is_finite()) {
         return Err(StructureError::Overflow);
     }
-    let pairs = eigenpairs(h, &x, two_m_f)?;
-    let labels = block_labels(m, two_m_f);
+    let (pairs, groups) = eigenpairs(h, &x, two_m_f)?;
+    let mut labels = block_labels(m, two_m_f);
+    // Inside a degenerate cluster the vectors come in ascending I.J, and
+    // I.J = K/2 grows with F: the cluster's labels go in ascending F.
+    for range in groups {
+        labels[range].sort_unstable();
+    }
     let mut out = Vec::with_capacity(pairs.len());
     for ((energy, mut v), two_f) in pairs.into_iter().zip(labels) {
         if !energy.is_finite() || v.iter().any(|c| !c.is_finite()) {

@@ -431,6 +431,80 @@ fn sign_falls_back_to_the_largest_amplitude() {
 }
 
 #[test]
+fn equal_g_factors_keep_the_coupled_states_under_a_huge_offset() {
+    // With g_J = g_I the Zeeman term is g m_F mu_B B, constant in a block, so
+    // the vectors are the coupled states at any field and E = E_F + g m_F
+    // mu_B B (common practice, no source). At 1000 T the offset is 1e10 times
+    // the inverted A (illustrative numbers): the hyperfine splitting is
+    // inside the degeneracy tolerance, and the I.J tie-break must still give
+    // each F its own state.
+    let m = Manifold {
+        two_j: 3,
+        two_i: 3,
+        a: -1e-3 * MHZ,
+        b: 0.4e-3 * MHZ,
+        g_j: 1.0,
+        g_i: 1.0,
+    };
+    let field = 1000.0;
+    let larmor = MU_B * field / HBAR;
+    let hf = hyperfine_levels(&m).unwrap();
+    for s in sublevels(&m, field).unwrap() {
+        let e_f = hf.iter().find(|l| l.two_f == s.two_f).unwrap().energy;
+        let offset = larmor * f64::from(s.two_m_f) / 2.0;
+        assert!((s.energy - e_f - offset).abs() < 1e-14 * larmor, "{s:?}");
+        for c in &s.components {
+            let cg = clebsch_gordan(m.two_j, c.two_m_j, m.two_i, c.two_m_i, s.two_f, s.two_m_f);
+            assert!((c.amplitude - cg).abs() < 1e-10, "{s:?}");
+        }
+    }
+}
+
+#[test]
+fn every_small_manifold_is_complete_and_consistent() {
+    // Internal consistency over J <= 3, I <= 7/2 (common practice, no
+    // source): one sublevel per (F, m_F), unit norm, energies summing to
+    // zero, and zero-field energies equal to the closed form.
+    let constants = [(1.0, 0.3), (-0.7, 0.0), (0.0, 0.0), (0.2, -1.1)];
+    for two_j in 0..=6 {
+        for two_i in 0..=7 {
+            for (k, &(a, b)) in constants.iter().enumerate() {
+                let m = Manifold {
+                    two_j,
+                    two_i,
+                    a: a * 100.0 * MHZ,
+                    b: b * 100.0 * MHZ,
+                    g_j: 1.1,
+                    g_i: -0.002,
+                };
+                let hf = hyperfine_levels(&m).unwrap();
+                for field in [0.0, 1e-3 * f64::from(u8::try_from(k).unwrap()), 7.0] {
+                    let levels = sublevels(&m, field).unwrap();
+                    let mut labels = Vec::new();
+                    for l in &hf {
+                        for two_m_f in (-l.two_f..=l.two_f).step_by(2) {
+                            labels.push((l.two_f, two_m_f));
+                        }
+                    }
+                    let got: Vec<_> = levels.iter().map(|s| (s.two_f, s.two_m_f)).collect();
+                    assert_eq!(got, labels, "{m:?} {field}");
+                    let sum: f64 = levels.iter().map(|s| s.energy).sum();
+                    let scale: f64 = levels.iter().map(|s| s.energy.abs()).sum::<f64>() + 1.0;
+                    assert!(sum.abs() < 1e-12 * scale, "{m:?} {field}");
+                    for s in &levels {
+                        assert!((overlap(s, s) - 1.0).abs() < 1e-12, "{m:?} {field}");
+                        if field == 0.0 {
+                            let e = hf.iter().find(|l| l.two_f == s.two_f).unwrap().energy;
+                            assert!((s.energy - e).abs() < 1e-12 * (scale + 200.0 * MHZ));
+                        }
+                    }
+                }
+            }
+        }
+    }
+}
+
+#[test]
 fn bad_inputs_are_errors_not_panics() {
     let m = rb87_s12();
     let neg = Manifold { two_j: -1, ..m };
