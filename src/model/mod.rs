@@ -444,10 +444,11 @@ impl Model {
     }
 }
 
-/// Level and field ids: one or more of letters, digits, `_`, `'`, `+`, `-`.
+/// Level and field ids: one or more of letters, digits, `_`, `'`, `+`,
+/// `-`, `/` (the slash spells half-integers in generated ids: `P_F3/2_m+1/2`).
 pub fn valid_id(id: &str) -> bool {
     !id.is_empty()
         && id
             .chars()
-            .all(|c| c.is_ascii_alphanumeric() || matches!(c, '_' | '\'' | '+' | '-'))
+            .all(|c| c.is_ascii_alphanumeric() || matches!(c, '_' | '\'' | '+' | '-' | '/'))
 }

@@ -45,16 +45,6 @@ pub(super) struct ManifoldInfo {
     pub two_f: Vec<i32>,
 }
 
-impl ManifoldInfo {
-    /// How many levels the manifold generated.
-    pub fn len(&self) -> usize {
-        match self.resolve {
-            Resolve::Sublevels => self.sublevels.len(),
-            Resolve::Hyperfine => self.two_f.len(),
-        }
-    }
-}
-
 /// The manifolds of a scheme and the bias field (T).
 #[derive(Default)]
 pub(super) struct Manifolds {
@@ -177,7 +167,13 @@ pub(super) fn manifolds(raw: &RawScheme, ctx: &mut Ctx, levels: &mut Levels) -> 
             out.list.push(info);
         }
     }
-    ctx.within(&mp, levels.list.len(), MAX_LEVELS, "levels", "generated and written levels");
+    ctx.within(
+        &mp,
+        levels.list.len(),
+        MAX_LEVELS,
+        "levels",
+        "generated and written levels",
+    );
     out
 }
 
