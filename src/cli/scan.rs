@@ -196,7 +196,9 @@ pub fn scan(a: ScanArgs) -> Result<i32, Error> {
     };
     let eval = |coords: &[f64]| -> Result<ScanRow, Error> {
         let rep = s.vet_point(&plan.grid, tolerance, n_levels, coords)?;
-        Ok(row_from_report(coords, &rep))
+        // The rows kept for the plot are those the file holds, whether
+        // computed now or read back by --resume.
+        Ok(row_from_report(coords, &rep).as_written(plan.open))
     };
     let rows = run_plan(
         &plan,

@@ -57,6 +57,19 @@ pub struct ScanRow {
     pub scattered_photons: Option<f64>,
 }
 
+impl ScanRow {
+    /// The row as a file with (`open`) or without the open-system columns
+    /// holds it: without them the lost population and the photons are
+    /// unknown, as in a row read back from such a file.
+    pub fn as_written(mut self, open: bool) -> ScanRow {
+        if !open {
+            self.lost = None;
+            self.scattered_photons = None;
+        }
+        self
+    }
+}
+
 /// What `tune` looks for.
 #[derive(Debug, Clone, PartialEq)]
 pub enum TuneGoal {
