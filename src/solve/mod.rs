@@ -237,7 +237,8 @@ fn run<E: Equation>(
 ) -> Result<Solution, SolveError> {
     let mut y = vec![0.0; eq.dim()];
     eq.initial_state(&mut y);
-    let extra = usize::from(plan.readout.is_some_and(|r| r.1));
+    // Room for the readout's own record where no sample is asked for there.
+    let extra = usize::from(plan.readout.is_some_and(|r| !r.1));
     let mut obs = ObserverSet::new(eq.levels(), plan.samples + extra, opts.peaks);
     let stats = match method {
         MethodUsed::Exact => {

@@ -65,11 +65,14 @@ impl Readout {
                 (Some(p), Some(l)) => (p.clone(), l),
                 _ => (end, end_lost),
             },
-            (When::At(_), Some((position, alone))) if position < samples.taken.len() => {
-                let p = if alone {
-                    samples.remove(position).1
-                } else {
+            (When::At(_), Some((position, asked_for))) if position < samples.taken.len() => {
+                // The plan's flag says whether a sample was asked for at
+                // the readout time; where not, the record is the
+                // readout's alone and leaves the samples.
+                let p = if asked_for {
                     samples.taken[position].1.clone()
+                } else {
+                    samples.remove(position).1
                 };
                 let lost = (1.0 - p.iter().sum::<f64>()).max(0.0);
                 (p, lost)

@@ -254,3 +254,47 @@ fn vet_and_inspect_say_how_a_version_1_initial_map_is_taken() {
     }
     fs::remove_dir_all(&d).unwrap();
 }
+
+#[test]
+fn evolve_csv_with_a_readout_inside_the_window_keeps_its_samples_and_columns() {
+    // The readout time (397.9 ns) is not one of the 11 sample times: the
+    // record made for it is taken out of the samples with its lost and
+    // photon values, and the CSV has exactly the samples asked for.
+    let scheme = "tests/fixtures/open/obe_torrey_readout.yaml";
+    let (header, rows) = table(&text(&ok(&["evolve", scheme, "--samples", "11"])));
+    assert_eq!(&header[header.len() - 2..], ["lost", "scattered_photons"]);
+    assert_eq!(rows.len(), 11);
+    let n = header.len();
+    for (i, r) in rows.iter().enumerate() {
+        assert!((r[0] - i as f64 * 1e-7).abs() <= 1e-15, "{r:?}");
+        assert!(r[n - 1] >= 0.0 && r[n - 2] >= 0.0, "{r:?}");
+    }
+    for w in rows.windows(2) {
+        assert!(w[1][n - 1] >= w[0][n - 1], "{:?} after {:?}", w[1], w[0]);
+    }
+    // Photons cover the whole window whatever the readout.
+    let photons = vet_json(scheme)["scattered_photons"].as_f64().unwrap();
+    assert!((rows[10][n - 1] - photons).abs() <= 1e-9, "{photons}");
+}
+
+#[test]
+fn evolve_csv_lost_is_what_leaves_through_an_open_decay() {
+    // Part of the decay of e leaves the scheme: lost grows, and at the
+    // window end it is vet's lost_population (readout at the window end).
+    let scheme = "tests/fixtures/open/c_dephasing_partial_decay.yaml";
+    let (header, rows) = table(&text(&ok(&["evolve", scheme, "--samples", "41"])));
+    let n = header.len();
+    let lost = vet_json(scheme)["lost_population"].as_f64().unwrap();
+    assert!(lost > 1e-3, "the fixture loses population: {lost}");
+    assert!(
+        (rows[40][n - 2] - lost).abs() <= 1e-9,
+        "{} vs {lost}",
+        rows[40][n - 2]
+    );
+    for r in &rows {
+        let sum: f64 = r[1..n - 2].iter().sum();
+        assert!((1.0 - sum - r[n - 2]).abs() <= 1e-8, "{r:?}");
+        // Each atom lost emitted a photon on its way out.
+        assert!(r[n - 1] >= r[n - 2] - 1e-12, "{r:?}");
+    }
+}
