@@ -7,31 +7,15 @@
 //!
 //! The schemes are invented and illustrative (tests/fixtures/open/).
 
+use crate::cli_support::table::Table;
+use crate::cli_support::{bin_at_root as bin, ok};
 use serde_json::Value;
 use std::fs;
 use std::path::PathBuf;
-use std::process::{Command, Output};
+use std::process::Output;
 
 const LAMBDA: &str = "tests/fixtures/open/b_lambda_pumping.yaml";
 const TWO_LEVEL: &str = "tests/fixtures/two_level_scan.yaml";
-
-fn bin() -> Command {
-    let mut c = Command::new(env!("CARGO_BIN_EXE_levelplan"));
-    c.current_dir(env!("CARGO_MANIFEST_DIR"));
-    c
-}
-
-fn ok(args: &[&str]) -> Output {
-    let o = bin().args(args).output().expect("the binary runs");
-    assert_eq!(
-        o.status.code(),
-        Some(0),
-        "levelplan {}\nstderr: {}",
-        args.join(" "),
-        String::from_utf8_lossy(&o.stderr)
-    );
-    o
-}
 
 fn text(o: &Output) -> String {
     String::from_utf8(o.stdout.clone()).expect("UTF-8")
@@ -45,30 +29,16 @@ fn vet_json(scheme: &str) -> Value {
     serde_json::from_slice(&o.stdout).expect("vet JSON")
 }
 
-/// Header and numeric rows of a CSV after its `#` lines.
+/// Header and numeric rows of a CSV after its `#` lines (an empty field,
+/// no estimate, as NaN).
 fn table(csv: &str) -> (Vec<String>, Vec<Vec<f64>>) {
-    let mut lines = csv.lines().skip_while(|l| l.starts_with('#'));
-    let header = lines
-        .next()
-        .expect("a header")
-        .split(',')
-        .map(String::from)
+    let t = Table::parse(csv);
+    let rows = t
+        .rows
+        .into_iter()
+        .map(|r| r.into_iter().map(|v| v.unwrap_or(f64::NAN)).collect())
         .collect();
-    let rows = lines
-        .map(|l| {
-            l.split(',')
-                .map(|f| {
-                    // An empty field (no estimate) reads as NaN here.
-                    if f.is_empty() {
-                        f64::NAN
-                    } else {
-                        f.parse().expect("a number")
-                    }
-                })
-                .collect()
-        })
-        .collect();
-    (header, rows)
+    (t.columns, rows)
 }
 
 fn scratch(tag: &str) -> PathBuf {
