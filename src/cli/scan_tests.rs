@@ -196,6 +196,9 @@ fn resume_and_merge_read_the_open_columns_back() {
         names.push(part);
     }
     assert_eq!(merge_texts(&names, &texts).unwrap(), full.as_bytes());
+    // The merged file plots (its head says the rows end in the two columns).
+    let svg = plot_scan_text(&full, false).unwrap().unwrap();
+    assert!(svg.matches("<rect").count() >= 35 + 100);
     // A closed part does not join open ones.
     let closed = d.0.join("closed.csv");
     run(
