@@ -7,34 +7,97 @@
 //! builder, needs a method the scheme forbids, loses its norm) never aborts
 //! the report: it is listed as not checked, with the reason.
 //!
-//! Owns: which changed models are propagated and where their populations (or
-//! the reasons they are missing) go in the report. Must not: propose
-//! remedies (the estimator does) or format.
+//! The checks together may do at most [`WORK_FACTOR`] times the work of
+//! the main propagation (or [`WORK_FLOOR`], whichever is more; work counts
+//! steps times the size of the state), so a large density matrix and a
+//! remedy of a much longer pulse cannot turn a seconds-long report into
+//! minutes: checks beyond that are listed as not checked, saying so.
+//!
+//! Owns: which changed models are propagated, their shared work budget, and
+//! where their populations (or the reasons they are missing) go in the
+//! report. Must not: propose remedies (the estimator does) or format.
 
 use super::check_solution;
 use crate::error::Error;
 use crate::estimate;
+use crate::model::Dynamics;
 use crate::model::{Envelope, Model, ModelError};
 use crate::report::{RemedyCheck, RemedyRow, UncheckedRemedy, VetReport};
 use crate::solve::{self, SolveOptions};
 
-/// The final population of level `k` in a changed model.
-fn final_population(
-    changed: Result<Model, ModelError>,
-    k: usize,
+/// The remedy checks of one report may do this many times the main run's work.
+pub const WORK_FACTOR: f64 = 5.0;
+/// ... or this much work (steps x state size), whichever is more: far above
+/// what any check of a scheme of a few levels needs.
+pub const WORK_FLOOR: f64 = 1e7;
+
+/// The work budget the remedy checks share, in steps x state size.
+struct Budget {
+    /// Work per step: the size of the state (N for amplitudes, N^2 for a
+    /// density matrix).
+    per_step: f64,
+    /// Steps the user allows one propagation.
     step_budget: u64,
-) -> Result<f64, Error> {
-    let opts = SolveOptions {
-        step_budget,
-        ..SolveOptions::default()
-    };
-    let sol = solve::solve(&changed?, &opts)?;
-    check_solution(&sol)?;
-    Ok(sol.final_populations[k])
+    remaining: f64,
+}
+
+impl Budget {
+    fn new(model: &Model, main_steps: u64, step_budget: u64) -> Budget {
+        let n = model.levels().len() as f64;
+        let per_step = match model.dynamics() {
+            Dynamics::DensityMatrix => n * n,
+            _ => n,
+        };
+        let total = (WORK_FACTOR * main_steps as f64 * per_step).max(WORK_FLOOR);
+        Budget {
+            per_step,
+            step_budget,
+            remaining: total,
+        }
+    }
+
+    /// Why a check is not run, once the budget is spent.
+    fn spent(&self) -> String {
+        format!(
+            "the remedy checks' shared budget ({WORK_FACTOR}x the main run's work, at least \
+             {WORK_FLOOR:.0e} steps x state size) is spent; vet the changed scheme"
+        )
+    }
+
+    /// The final population of level `k` in a changed model, within the
+    /// remaining budget.
+    fn final_population(
+        &mut self,
+        changed: Result<Model, ModelError>,
+        k: usize,
+    ) -> Result<f64, String> {
+        let steps_left = (self.remaining / self.per_step).floor();
+        if steps_left < 1.0 {
+            return Err(self.spent());
+        }
+        let cap = (steps_left as u64).min(self.step_budget);
+        let opts = SolveOptions {
+            step_budget: cap,
+            ..SolveOptions::default()
+        };
+        let model = changed.map_err(|e| Error::from(e).to_string())?;
+        match solve::solve(&model, &opts) {
+            Ok(sol) => {
+                self.remaining -= sol.steps as f64 * self.per_step;
+                check_solution(&sol).map_err(|e| e.to_string())?;
+                Ok(sol.final_populations[k])
+            }
+            Err(solve::SolveError::StepBudget { .. }) if cap < self.step_budget => {
+                self.remaining = 0.0;
+                Err(self.spent())
+            }
+            Err(e) => Err(Error::from(e).to_string()),
+        }
+    }
 }
 
 /// Record the outcome of one check: its population, or why it is missing.
-fn record(rm: &mut RemedyRow, check: RemedyCheck, outcome: Result<f64, Error>) {
+fn record(rm: &mut RemedyRow, check: RemedyCheck, outcome: Result<f64, String>) {
     let slot = match check {
         RemedyCheck::Gaussian => &mut rm.exact_gaussian,
         RemedyCheck::Blackman => &mut rm.exact_blackman,
@@ -44,16 +107,16 @@ fn record(rm: &mut RemedyRow, check: RemedyCheck, outcome: Result<f64, Error>) {
         Ok(p) => *slot = Some(p),
         Err(e) => {
             *slot = None;
-            rm.not_checked
-                .push(UncheckedRemedy::new(check, e.to_string()));
+            rm.not_checked.push(UncheckedRemedy::new(check, e));
         }
     }
 }
 
 /// Fill the `exact_*` populations of every remedy of the report, each run
-/// with `step_budget`; a check that fails is listed in the remedy's
-/// `not_checked` instead.
+/// with at most `step_budget` steps and all within the shared work budget;
+/// a check that fails is listed in the remedy's `not_checked` instead.
 pub(super) fn check(model: &Model, rep: &mut VetReport, step_budget: u64) {
+    let mut budget = Budget::new(model, rep.solver.steps, step_budget);
     for (k, row) in rep.levels.iter_mut().enumerate() {
         let Some(rm) = row.remedy.as_mut() else {
             continue;
@@ -68,7 +131,7 @@ pub(super) fn check(model: &Model, rep: &mut VetReport, step_budget: u64) {
         record(
             rm,
             RemedyCheck::Gaussian,
-            final_population(gaussian, k, step_budget),
+            budget.final_population(gaussian, k),
         );
         if let Some(frac) = estimate::intensity_fwhm(&Envelope::Blackman {
             start: 0.0,
@@ -83,7 +146,7 @@ pub(super) fn check(model: &Model, rep: &mut VetReport, step_budget: u64) {
             record(
                 rm,
                 RemedyCheck::Blackman,
-                final_population(changed, k, step_budget),
+                budget.final_population(changed, k),
             );
         }
         if let Some(len) = rm.length_for_tolerance {
@@ -93,7 +156,7 @@ pub(super) fn check(model: &Model, rep: &mut VetReport, step_budget: u64) {
                 record(
                     rm,
                     RemedyCheck::AtLength,
-                    final_population(changed, k, step_budget),
+                    budget.final_population(changed, k),
                 );
             }
         }
