@@ -183,9 +183,86 @@ def run(sc):
     return final, lost, settled, float(rs.full()[n - 1, n - 1].real)
 
 
+def sixj(a, b, c, d, e, f):
+    from sympy import Rational as R
+    from sympy.physics.wigner import wigner_6j
+    h = lambda x: R(x) / 2
+    return float(wigner_6j(h(a), h(b), h(c), h(d), h(e), h(f)))
+
+
+def run_hyperfine(sc):
+    """F-level model (resolve: hyperfine, zero field): F -> F' couplings with
+    the isotropic strength S_FF' / 3, S_FF' = (2F'+1)(2J+1){J J' 1; F' F I}^2,
+    and incoherent decay F' -> F with branching (2F+1)(2J'+1){J J' 1; F' F I}^2
+    (D. A. Steck, alkali D-line data, relative hyperfine strength factors)."""
+    import numpy as np
+    import qutip as qt
+    two_j, two_jp, two_i = 1, 3, sc["two_i"]
+    def levels(name, tj, a_mhz):
+        out = []
+        for f in range(abs(tj - two_i), tj + two_i + 1, 2):
+            k = (f / 2) * (f / 2 + 1) - (two_i / 2) * (two_i / 2 + 1) - (tj / 2) * (tj / 2 + 1)
+            out.append((f"{name}_F{half(f)}", f, TWO_PI * a_mhz * 1e6 * k / 2))
+        return out
+    lo, up = levels("S", two_j, sc["a_s"]), levels("P", two_jp, sc["a_p"])
+    ids = [l[0] for l in lo] + [u[0] for u in up]
+    idx = {k: i for i, k in enumerate(ids)}
+    ng, ne = len(lo), len(up)
+    n = ng + ne + 1
+    S = np.zeros((ng, ne)); B = np.zeros((ng, ne))
+    for a, (_, f, _) in enumerate(lo):
+        for b, (_, fp, _) in enumerate(up):
+            w = sixj(two_j, two_jp, 2, fp, f, two_i) ** 2
+            S[a, b] = (fp + 1) * (two_j + 1) * w
+            B[a, b] = (f + 1) * (two_jp + 1) * w
+    assert np.allclose(S.sum(axis=1), 1) and np.allclose(B.sum(axis=0), 1)
+    e = {l[0]: l[2] for l in lo + up}
+    gref, eref = sc["tuned"]
+    delta = TWO_PI * sc["detuning_mhz"] * 1e6
+    h0 = np.zeros((n, n), complex)
+    for k in ids:
+        h0[idx[k], idx[k]] = e[k] if k.startswith("S") else e[k] - (e[eref] - e[gref]) - delta
+    omega = np.sqrt(S / 3.0)
+    ra, rb = idx[sc["rabi_on"][0]], idx[sc["rabi_on"][1]] - ng
+    omega *= TWO_PI * sc["rabi_mhz"] * 1e6 / omega[ra, rb]
+    hd = np.zeros((n, n), complex)
+    hd[:ng, ng:ng + ne] = omega / 2
+    hd[ng:ng + ne, :ng] = omega.T / 2
+    gamma = 1.0 / (sc["lifetime_ns"] * 1e-9)
+    cops = []
+    for b in range(ne):
+        for a in range(ng):
+            L = np.zeros((n, n)); L[a, ng + b] = math.sqrt(sc["fraction"] * gamma * B[a, b])
+            cops.append(qt.Qobj(L))
+        L = np.zeros((n, n)); L[n - 1, ng + b] = math.sqrt((1 - sc["fraction"]) * gamma)
+        cops.append(qt.Qobj(L))
+    return ids, n, h0, hd, cops, gamma
+
+
+def evolve(sc, ids, n, h0, hd, cops, gamma):
+    import numpy as np
+    import qutip as qt
+    idx = {k: i for i, k in enumerate(ids)}
+    rho = np.zeros((n, n), complex)
+    for k, w in sc["initial"].items():
+        rho[idx[k], idx[k]] = w
+    rho = qt.Qobj(rho)
+    dur, end = sc["duration_ns"] * 1e-9, sc["window_ns"] * 1e-9
+    rho = qt.mesolve(qt.Qobj(h0 + hd), rho, np.linspace(0, dur, 201), c_ops=cops, options=OPTS).states[-1]
+    if end > dur:
+        rho = qt.mesolve(qt.Qobj(h0), rho, np.linspace(dur, end, 101), c_ops=cops, options=OPTS).states[-1]
+    final = {k: float(rho.full()[idx[k], idx[k]].real) for k in ids}
+    lost = float(rho.full()[n - 1, n - 1].real)
+    rs = qt.mesolve(qt.Qobj(h0), rho, np.linspace(0, 40.0 / gamma, 401), c_ops=cops, options=OPTS).states[-1]
+    settled = {k: float(rs.full()[idx[k], idx[k]].real) for k in ids}
+    return final, lost, settled, float(rs.full()[n - 1, n - 1].real)
+
+
 def yaml(sc):
     pol = sc["pol"]
     names = {1: "sigma+", 0: "pi", -1: "sigma-"}
+    resolve = "\n    resolve: hyperfine" if sc.get("hyperfine") else ""
+    pol_line = "" if sc.get("hyperfine") else "\n    polarization: "
     pol_text = "{ " + ", ".join(f"{names[q]}: {pol[q]}" for q in (1, 0, -1) if pol[q] > 0) + " }"
     init = ", ".join(f"{k}: {v}" for k, v in sc["initial"].items())
     frac = "true" if sc["fraction"] == 1 else sc["fraction"]
@@ -203,23 +280,22 @@ manifolds:
     I: {half(sc['two_i'])}
     hyperfine: {{ A: "{sc['a_s']} MHz" }}
     g_J: {sc['g_s']}
-    g_I: {sc['g_i']}
+    g_I: {sc['g_i']}{resolve}
   P:
     energy: "391.7 THz"
     J: 3/2
     I: {half(sc['two_i'])}
     hyperfine: {{ A: "{sc['a_p']} MHz" }}
     g_J: {sc['g_p']}
-    g_I: {sc['g_i']}
+    g_I: {sc['g_i']}{resolve}
     lifetime: "{sc['lifetime_ns']} ns"
-magnetic_field: "{sc['field']} G"
+{"" if sc.get("hyperfine") else 'magnetic_field: "' + str(sc['field']) + ' G"'}
 couplings:
   - between: [S, P]
     from_lifetime: {frac}
 fields:
   laser:
-    tuned: {{ to: [{sc['tuned'][0]}, {sc['tuned'][1]}], detuning: "{sc['detuning_mhz']} MHz" }}
-    polarization: {pol_text}
+    tuned: {{ to: [{sc['tuned'][0]}, {sc['tuned'][1]}], detuning: "{sc['detuning_mhz']} MHz" }}{pol_line}{"" if sc.get("hyperfine") else pol_text}
     rabi: {{ on: [{sc['rabi_on'][0]}, {sc['rabi_on'][1]}], value: "{sc['rabi_mhz']} MHz" }}
     envelope: {{ shape: rectangular, start: "0 ns", duration: "{sc['duration_ns']} ns" }}
 window: {{ start: "0 ns", end: "{sc['window_ns']} ns" }}
@@ -247,6 +323,12 @@ SCENARIOS = [
          duration_ns=200.0, window_ns=250.0,
          initial={"S_F1_m-1": 0.3333333333333333, "S_F1_m0": 0.3333333333333334, "S_F1_m+1": 0.3333333333333333},
          target="S_F0_m0"),
+    dict(name="c_hyperfine_levels", title="F-resolved line (resolve: hyperfine), no field",
+         comment="resolve: hyperfine: F -> F' couplings with S_FF'/3, decay branched by F; 90 % of P's decay to S.",
+         hyperfine=True, two_i=1, a_s=80.0, a_p=15.0, g_s=2.0, g_p=1.33, g_i=-0.0005, field=0.0,
+         lifetime_ns=30.0, fraction=0.9, tuned=("S_F1", "P_F1"), detuning_mhz=5.0,
+         pol={1: 0.0, 0: 1.0, -1: 0.0}, rabi_on=("S_F1", "P_F2"), rabi_mhz=8.0,
+         duration_ns=120.0, window_ns=150.0, initial={"S_F1": 1.0}, target="S_F0"),
 ]
 
 
@@ -254,7 +336,10 @@ def main():
     vers = versions()
     OUT.mkdir(parents=True, exist_ok=True)
     for sc in SCENARIOS:
-        final, lost, settled, settled_lost = run(sc)
+        if sc.get("hyperfine"):
+            final, lost, settled, settled_lost = evolve(sc, *run_hyperfine(sc))
+        else:
+            final, lost, settled, settled_lost = run(sc)
         (OUT / f"{sc['name']}.yaml").write_text(yaml(sc))
         doc = {"scheme": f"{sc['name']}.yaml", "final_population": final, "lost_population": lost,
                "settled_population": settled, "settled_lost_population": settled_lost,

@@ -18,7 +18,11 @@ use std::process::Command;
 
 const DIR: &str = "tests/fixtures/manifolds";
 const TOL: f64 = 1e-6;
-const FIXTURES: &[&str] = &["a_sigma_plus_impure", "b_pi_unpolarised"];
+const FIXTURES: &[&str] = &[
+    "a_sigma_plus_impure",
+    "b_pi_unpolarised",
+    "c_hyperfine_levels",
+];
 const PINNED: &[(&str, &str)] = &[
     ("qutip", "5.3.1"),
     ("numpy", "2.4.6"),
@@ -109,6 +113,16 @@ fn impure_sigma_plus_pulse_at_three_gauss() {
 #[test]
 fn weak_pi_light_on_an_unpolarised_level() {
     check_fixture("b_pi_unpolarised");
+}
+
+/// `resolve: hyperfine` at zero field against the F-level model built in the
+/// script: F -> F' couplings with the isotropic strength S_FF'/3 and decay
+/// branched by F, S and the branching from sympy's 6j symbols (D. A. Steck,
+/// alkali D-line data, relative hyperfine strength factors); 10 % of the
+/// decay lost.
+#[test]
+fn hyperfine_resolved_levels_match_the_f_level_model() {
+    check_fixture("c_hyperfine_levels");
 }
 
 /// The fixtures record their versions and keep their trace; the comparison
