@@ -12,6 +12,7 @@ mod demo_schemes;
 mod estimate;
 mod estimate_rates;
 mod estimate_remedy;
+mod manifold_reference;
 mod open_reference;
 mod propagation_budget;
 mod propagation_dop853;
