@@ -103,20 +103,18 @@ pub(super) fn read(
         return None;
     }
     let strength = strength(ctx, rc, path, up)?;
-    for key in ["dipole", "einstein_a", "g_lower", "g_upper"] {
-        let given = match key {
-            "dipole" => rc.dipole.is_some(),
-            "einstein_a" => rc.einstein_a.is_some(),
-            "g_lower" => rc.g_lower.is_some(),
-            _ => rc.g_upper.is_some(),
-        };
-        if given {
-            ctx.push(
-                &path.k(key),
-                "reduced_dipole or from_lifetime on a coupling between manifolds",
-                format!("{key} (a key of couplings between levels)"),
-            );
-        }
+    let level_keys = [
+        ("dipole", &rc.dipole),
+        ("einstein_a", &rc.einstein_a),
+        ("g_lower", &rc.g_lower),
+        ("g_upper", &rc.g_upper),
+    ];
+    for (key, _) in level_keys.iter().filter(|(_, v)| v.is_some()) {
+        ctx.push(
+            &path.k(key),
+            "reduced_dipole or from_lifetime on a coupling between manifolds",
+            format!("{key} (a key of couplings between levels)"),
+        );
     }
     Some(Spec {
         source,

@@ -205,7 +205,7 @@ fn constants(ctx: &mut Ctx, m: &RawManifold, path: &KeyPath, field: f64) -> Opti
             format!("B with J = {}, I = {}", half_text(two_j), half_text(two_i)),
         );
     }
-    if g_j.is_none() && field != 0.0 && m.g_j.is_none() {
+    if m.g_j.is_none() && field != 0.0 {
         ctx.missing(
             &path.k("g_J"),
             "g_J (a bare number), since magnetic_field is not zero",
