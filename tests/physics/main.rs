@@ -5,6 +5,7 @@
 //! `cargo test --release --test physics propagation_rabi::`.
 
 mod estimate_support;
+mod fixture_support;
 mod solve_support;
 
 mod decay_channels;

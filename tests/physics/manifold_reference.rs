@@ -12,9 +12,8 @@
 //! illustrative. Every level's window-end and settled population and the
 //! lost population are compared at 1e-6 absolute.
 
+use crate::fixture_support;
 use serde_json::Value;
-use std::path::Path;
-use std::process::Command;
 
 const DIR: &str = "tests/fixtures/manifolds";
 const TOL: f64 = 1e-6;
@@ -23,36 +22,14 @@ const FIXTURES: &[&str] = &[
     "b_pi_unpolarised",
     "c_hyperfine_levels",
 ];
-const PINNED: &[(&str, &str)] = &[
-    ("qutip", "5.3.1"),
-    ("numpy", "2.4.6"),
-    ("scipy", "1.17.1"),
-    ("sympy", "1.14.0"),
-];
-
-fn root() -> &'static Path {
-    Path::new(env!("CARGO_MANIFEST_DIR"))
-}
 
 fn read_json(name: &str) -> Value {
-    let path = root().join(DIR).join(name);
-    let text = std::fs::read_to_string(&path).unwrap_or_else(|e| panic!("{}: {e}", path.display()));
-    serde_json::from_str(&text).unwrap_or_else(|e| panic!("{}: {e}", path.display()))
+    fixture_support::read_json(DIR, name)
 }
 
 fn vet(scheme: &str) -> Value {
-    let out = Command::new(env!("CARGO_BIN_EXE_levelplan"))
-        .current_dir(root())
-        .args(["vet", scheme, "--format", "json"])
-        .output()
-        .expect("the binary runs");
-    assert!(
-        matches!(out.status.code(), Some(0 | 3)),
-        "{scheme}: exit {:?}\n{}",
-        out.status.code(),
-        String::from_utf8_lossy(&out.stderr)
-    );
-    serde_json::from_slice(&out.stdout).expect("a JSON report")
+    fixture_support::vet_json(scheme)
+        .unwrap_or_else(|(code, stderr)| panic!("{scheme}: exit {code:?}\n{stderr}"))
 }
 
 /// Everything in which a report differs from a fixture's reference.
@@ -131,13 +108,7 @@ fn hyperfine_resolved_levels_match_the_f_level_model() {
 fn manifold_fixtures_are_consistent_and_the_comparison_bites() {
     for name in FIXTURES {
         let fx = read_json(&format!("{name}.json"));
-        for (lib, v) in PINNED {
-            assert_eq!(
-                fx["metadata"]["versions"][lib].as_str(),
-                Some(*v),
-                "{name}: {lib}"
-            );
-        }
+        fixture_support::assert_pinned(name, &fx["metadata"]["versions"]);
         let sum = |k: &str| -> f64 {
             fx[k]
                 .as_object()
