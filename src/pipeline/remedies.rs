@@ -162,3 +162,102 @@ pub(super) fn check(model: &Model, rep: &mut VetReport, step_budget: u64) {
         }
     }
 }
+
+#[cfg(test)]
+mod tests {
+    //! The shared work budget of the remedy checks (a defect found in
+    //! review: each check had the full step budget of its own, so the checks
+    //! of a 24-sublevel density matrix took minutes after a 0.5 s main run).
+    use super::*;
+
+    /// A resonant Gaussian pulse on a two-level scheme (invented,
+    /// illustrative numbers), solved by the adaptive stepper.
+    fn model() -> Model {
+        let text = r#"levels:
+  g: {energy: "0 cm^-1"}
+  e: {energy: "12000 cm^-1"}
+initial: g
+couplings:
+  - {between: [g, e], dipole: 1}
+fields:
+  L:
+    tuned: {to: [g, e], detuning: "5 MHz"}
+    rabi: {on: [g, e], value: "10 MHz"}
+    envelope: {shape: gaussian, center: "500 ns", fwhm: "200 ns"}
+window: {start: "0 ns", end: "1000 ns"}
+solver: {method: adaptive}
+"#;
+        crate::parse(text, "budget.yaml").expect("a valid scheme")
+    }
+
+    fn steps(model: &Model) -> u64 {
+        solve::solve(model, &SolveOptions::default())
+            .expect("propagation")
+            .steps
+    }
+
+    // The work of a check is taken from the shared budget (steps x N).
+    #[test]
+    fn a_check_spends_its_steps_times_the_state_size() {
+        let m = model();
+        let n = steps(&m);
+        assert!(n > 20, "the pulse takes {n} steps");
+        let mut b = Budget {
+            per_step: 2.0,
+            step_budget: 1_000_000,
+            remaining: 1e9,
+        };
+        let p = b.final_population(Ok(m.clone()), 1).expect("checked");
+        let direct = solve::solve(&m, &SolveOptions::default()).expect("propagation");
+        assert_eq!(p, direct.final_populations[1]);
+        assert_eq!(b.remaining, 1e9 - 2.0 * n as f64);
+    }
+
+    // A check that would outrun the remaining budget is stopped by it and
+    // reported as not checked for that reason; later checks are refused
+    // without running.
+    #[test]
+    fn a_spent_budget_stops_the_checks_and_says_why() {
+        let m = model();
+        let n = steps(&m);
+        let mut b = Budget {
+            per_step: 2.0,
+            step_budget: 1_000_000,
+            remaining: 2.0 * (n / 2) as f64,
+        };
+        let e = b
+            .final_population(Ok(m.clone()), 1)
+            .expect_err("budget spent");
+        assert!(e.contains("shared budget"), "{e}");
+        assert_eq!(b.remaining, 0.0);
+        let again = b.final_population(Ok(m), 1).expect_err("no budget left");
+        assert_eq!(again, e);
+    }
+
+    // The user's step budget still bounds one check, and running into it
+    // names the step budget, not the shared one.
+    #[test]
+    fn the_step_budget_still_bounds_one_check() {
+        let m = model();
+        let mut b = Budget {
+            per_step: 2.0,
+            step_budget: 5,
+            remaining: 1e9,
+        };
+        let e = b.final_population(Ok(m), 1).expect_err("step budget");
+        assert!(!e.contains("shared budget"), "{e}");
+        assert_eq!(b.remaining, 1e9);
+    }
+
+    // Work per step: N for amplitudes, N^2 for a density matrix; the floor
+    // applies to small schemes (a few-level scheme never meets the budget).
+    #[test]
+    fn the_budget_scales_with_the_main_run_and_the_state() {
+        let m = model();
+        let b = Budget::new(&m, 10, 1_000);
+        assert_eq!(b.per_step, 2.0);
+        assert_eq!(b.remaining, WORK_FLOOR);
+        let b = Budget::new(&m, 10_000_000, 1_000);
+        assert_eq!(b.remaining, WORK_FACTOR * 1e7 * 2.0);
+    }
+}
