@@ -16,3 +16,4 @@ mod limits;
 mod open_csv;
 mod output_files;
 mod readme;
+mod sublevels;
