@@ -12,7 +12,7 @@ pub use vet::vet_doc;
 
 use super::numfmt::{self, Num};
 use crate::estimate::Order;
-use crate::model::InitialKind;
+use crate::model::{Dynamics, InitialKind};
 use crate::report::{InspectReport, SafetyNote};
 use crate::solve::MethodUsed;
 
@@ -22,8 +22,20 @@ const TWO_PI: f64 = 2.0 * std::f64::consts::PI;
 /// of unknown intensity.
 pub const SAFETY_TEXT: &str = "Laser safety: these numbers are for planning only. Beam powers used in such schemes can cause eye and skin injury; follow your institution's laser-safety rules and its laser safety officer, and the applicable standards (IEC 60825-1, ANSI Z136.1).";
 
-/// Plain statement of what the numbers are.
+/// Plain statement of what the numbers are, for a run of the amplitudes
+/// (the version-1 wording; its bytes are in the goldens).
 pub const MODEL_TEXT: &str = "Results are model calculations (Schrodinger equation with the stated approximations); check them against measurement.";
+
+/// The same statement for a run of the density matrix.
+pub const MODEL_TEXT_DENSITY: &str = "Results are model calculations (Lindblad master equation for the density matrix, with the stated approximations); check them against measurement.";
+
+/// The statement naming the equation the run solved.
+pub fn model_text(dynamics: Dynamics) -> &'static str {
+    match dynamics {
+        Dynamics::DensityMatrix => MODEL_TEXT_DENSITY,
+        Dynamics::Amplitudes | Dynamics::Auto => MODEL_TEXT,
+    }
+}
 
 /// The note under the levels of `vet` and `inspect` when the initial state
 /// is the version-1 map with more than one populated level: how it is
