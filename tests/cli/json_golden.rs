@@ -28,6 +28,16 @@ const CASES: &[(&str, &[&str], i32)] = &[
         0,
     ),
     (
+        "sigma_pumping.vet.json",
+        &["vet", "level_schemes/sigma_pumping.yaml"],
+        3,
+    ),
+    (
+        "sigma_pumping.inspect.json",
+        &["inspect", "level_schemes/sigma_pumping.yaml"],
+        0,
+    ),
+    (
         "ladder_two_step.vet.json",
         &["vet", "level_schemes/ladder_two_step.yaml"],
         0,
