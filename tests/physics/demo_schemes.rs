@@ -329,3 +329,72 @@ fn complete_example_in_the_format_reference_parses() {
     assert_relative_eq!(mhz(m.detuning(&m.drives()[0])), -20.0, max_relative = 1e-6);
     assert!(doc.contains("IEC 60825-1"));
 }
+
+/// vet of a shipped scheme (the library's pipeline, as the CLI runs it).
+fn vet_file(rel: &str) -> levelplan::report::VetReport {
+    let p = Path::new(env!("CARGO_MANIFEST_DIR")).join(rel);
+    let (model, src) = read(&p);
+    let prov = levelplan::report::Provenance::new(rel, &src.sha256);
+    levelplan::pipeline::vet_model(&model, prov, None).unwrap_or_else(|e| panic!("{e}"))
+}
+
+fn row<'a>(r: &'a levelplan::report::VetReport, id: &str) -> &'a levelplan::report::LevelRow {
+    r.levels.iter().find(|l| l.id == id).unwrap()
+}
+
+/// The hyperfine demo flags the right levels for the right reason: P_F2 by
+/// the drive from S_F2 268 MHz off resonance (the pulse spectrum), S_F1 by
+/// the decay of P_F2 (F' = 2 -> F = 1 has branching 1/2 for I = 3/2,
+/// J = 1/2 -> 3/2: D. A. Steck, alkali D-line data), and nothing reaches
+/// P_F0 (no F = 2 -> F' = 0 line, S_F1 empty at the start).
+#[test]
+fn hyperfine_demo_flags_the_neighbour_and_its_decay() {
+    let r = vet_file("level_schemes/hyperfine_manifold.yaml");
+    let flagged: Vec<&str> = r
+        .levels
+        .iter()
+        .filter(|l| l.flagged)
+        .map(|l| l.id.as_str())
+        .collect();
+    assert_eq!(flagged, ["S_F1", "P_F2"]);
+    assert_eq!(levelplan::pipeline::vet_status(&r), 3);
+    let p2 = row(&r, "P_F2");
+    let first = &p2.sources[0];
+    assert_eq!(first.from, "S_F2");
+    assert!((first.detuning / TWO_PI / 1e6 - 268.0).abs() < 1e-3);
+    assert!(p2.final_population > 2.0 * p2.tolerance);
+    let s1 = row(&r, "S_F1");
+    assert_eq!(s1.sources[0].via.as_deref(), Some("P_F2"));
+    assert_eq!(row(&r, "P_F0").final_population, 0.0);
+}
+
+/// sigma+ light from |2,+1> can only raise m_F, and the decay of
+/// |3', +2'> returns to m_F = +1, +2: with pure sigma+ no m_F <= 0 sublevel
+/// is ever populated (m_F is conserved exactly along the field; Delta m =
+/// +1 in absorption: the dipole selection rules, Edmonds ch. 5). The pi
+/// and sigma- impurity reaches |2, 0>, above the 1e-3 tolerance, through
+/// the decay of |3', +1'> (common practice, no source).
+#[test]
+fn sigma_pumping_impurity_is_what_breaks_the_tolerance() {
+    let impure = vet_file("level_schemes/sigma_pumping.yaml");
+    let pure = vet_file("level_schemes/cookbook/sigma_pumping_pure.yaml");
+    let flagged = |r: &levelplan::report::VetReport| -> Vec<String> {
+        r.levels
+            .iter()
+            .filter(|l| l.flagged)
+            .map(|l| l.id.clone())
+            .collect()
+    };
+    assert_eq!(flagged(&impure), ["S_F2_m0"]);
+    assert!(flagged(&pure).is_empty());
+    for id in ["S_F2_m0", "S_F2_m-1", "S_F2_m-2"] {
+        assert_eq!(row(&pure, id).final_population, 0.0, "{id}");
+    }
+    let m0 = row(&impure, "S_F2_m0");
+    assert!(m0.final_population > 1e-3, "{}", m0.final_population);
+    assert_eq!(m0.sources[0].via.as_deref(), Some("P_F3_m+1"));
+    // The target gets most of the population either way.
+    for r in [&impure, &pure] {
+        assert!(row(r, "S_F2_m+2").final_population > 0.9);
+    }
+}
