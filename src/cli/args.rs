@@ -15,7 +15,7 @@ use std::path::PathBuf;
 #[command(
     name = "levelplan",
     version,
-    about = "Plan laser excitation schemes: exact Schrodinger propagation beside first-order estimates, leakage reports for proposals",
+    about = "Plan laser excitation schemes: exact propagation (Schrodinger equation, or the Lindblad master equation for open systems) beside first-order estimates, leakage reports for proposals",
     after_help = help::top()
 )]
 pub struct Cli {

@@ -17,7 +17,7 @@ pub use vet::vet_doc;
 
 use super::numfmt::{self, Num};
 use crate::estimate::Order;
-use crate::model::InitialKind;
+use crate::model::{Dynamics, InitialKind};
 use crate::report::SafetyNote;
 use crate::solve::MethodUsed;
 
@@ -27,8 +27,20 @@ const TWO_PI: f64 = 2.0 * std::f64::consts::PI;
 /// of unknown intensity.
 pub const SAFETY_TEXT: &str = "Laser safety: these numbers are for planning only. Beam powers used in such schemes can cause eye and skin injury; follow your institution's laser-safety rules and its laser safety officer, and the applicable standards (IEC 60825-1, ANSI Z136.1).";
 
-/// Plain statement of what the numbers are.
+/// Plain statement of what the numbers are, for a run of the amplitudes
+/// (the version-1 wording; its bytes are in the goldens).
 pub const MODEL_TEXT: &str = "Results are model calculations (Schrodinger equation with the stated approximations); check them against measurement.";
+
+/// The same statement for a run of the density matrix.
+pub const MODEL_TEXT_DENSITY: &str = "Results are model calculations (Lindblad master equation for the density matrix, with the stated approximations); check them against measurement.";
+
+/// The statement naming the equation the run solved.
+pub fn model_text(dynamics: Dynamics) -> &'static str {
+    match dynamics {
+        Dynamics::DensityMatrix => MODEL_TEXT_DENSITY,
+        Dynamics::Amplitudes | Dynamics::Auto => MODEL_TEXT,
+    }
+}
 
 /// The note under the levels of `vet` and `inspect` when the initial state
 /// is the version-1 map with more than one populated level: how it is
@@ -136,8 +148,16 @@ pub fn latex_escape(s: &str) -> String {
     out
 }
 
-/// A "largest sublevel" cell: the sublevel's id and its population.
+/// A "largest sublevel" cell: the sublevel's id and its population, or
+/// "-" when no sublevel of the group holds any (none is largest then).
 fn largest_cell(id: &str, population: f64) -> Cell {
+    if population <= 0.0 {
+        return Cell {
+            plain: "-".into(),
+            latex: "--".into(),
+            mark: Mark::None,
+        };
+    }
     let p = numfmt::population(population);
     Cell {
         plain: format!("{id} {}", p.plain()),
@@ -217,4 +237,18 @@ fn safety_section(notes: &[SafetyNote]) -> Option<Section> {
         table: None,
         notes: lines,
     })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::largest_cell;
+
+    /// Regression: an empty group named its first sublevel as "largest"
+    /// with population 0; it now shows a dash.
+    #[test]
+    fn an_empty_group_has_no_largest_sublevel() {
+        assert_eq!(largest_cell("P_F1_m-1", 0.0).plain, "-");
+        let c = largest_cell("S_F1_m+1", 2.35e-4);
+        assert!(c.plain.starts_with("S_F1_m+1 "), "{}", c.plain);
+    }
 }

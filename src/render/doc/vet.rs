@@ -7,8 +7,8 @@
 
 use super::groups::{self, Entry, Group, Sublevels};
 use super::{
-    initial_note, largest_cell, method_name, numfmt, order_name, provenance_meta, safety_section,
-    table, window_meta, Align, Cell, Doc, Mark, Section, MODEL_TEXT, TWO_PI,
+    initial_note, largest_cell, method_name, model_text, numfmt, order_name, provenance_meta,
+    safety_section, table, window_meta, Align, Cell, Doc, Mark, Section, TWO_PI,
 };
 use crate::model::{Dynamics, Readout};
 use crate::report::{Channel, LevelRow, RemedyCheck, RemedyRow, Role, SourceRow, VetReport};
@@ -473,7 +473,7 @@ pub fn vet_doc(r: &VetReport, mode: Sublevels) -> Doc {
     sections.push(Section {
         heading: String::new(),
         table: None,
-        notes: vec![MODEL_TEXT.into()],
+        notes: vec![model_text(r.dynamics).into()],
     });
     Doc {
         title: match &r.title {

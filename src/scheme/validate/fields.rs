@@ -192,6 +192,11 @@ fn tuned(
         .iter()
         .flatten()
         .any(|c| (c.lower == a && c.upper == b) || (c.lower == b && c.upper == a));
+    if !joined && couplings.iter().any(Option::is_none) {
+        // A coupling that did not validate may be the one meant; its own
+        // message says why.
+        return None;
+    }
     if !joined {
         let ids = t.to.as_deref().unwrap_or(&[]);
         ctx.push(
@@ -393,11 +398,21 @@ fn reference_drive(
         .find(|&k| s.couplings[drives[k].coupling].as_ref().is_some_and(joins));
     if found.is_none() {
         let id = &s.fields[fi].id;
-        let exists = s.couplings.iter().flatten().any(joins);
-        let why = if exists {
-            format!("its `fields:` list leaves '{id}' out")
-        } else {
-            "no coupling joins them".to_string()
+        let joining = s.couplings.iter().flatten().find(|c| joins(c));
+        let polarization = s.fields[fi].polarization;
+        let why = match (joining, joining.and_then(|c| c.q)) {
+            // Its own message (a polarization missing or not valid, a
+            // coupling that did not validate) says why.
+            (Some(_), Some(_)) if polarization.is_none() => return None,
+            (None, _) if s.couplings.iter().any(Option::is_none) => return None,
+            (Some(_), Some(q)) if polarization.is_some_and(|p| p[(q + 1) as usize] == 0.0) => {
+                format!(
+                    "its polarization has no {} component, which this transition needs",
+                    ["sigma-", "pi", "sigma+"][(q + 1) as usize]
+                )
+            }
+            (Some(_), _) => format!("its `fields:` list leaves '{id}' out"),
+            (None, _) => "no coupling joins them".to_string(),
         };
         ctx.push(
             &s.paths[fi].k(key).k("on"),

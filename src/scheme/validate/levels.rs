@@ -22,6 +22,9 @@ pub(super) struct Levels {
     pub energy_ok: Vec<bool>,
     index: HashMap<String, usize>,
     ids: Vec<String>,
+    /// Ids of manifolds that did not validate: references to the levels
+    /// they would have generated (`<id>_F...`) are not reported again.
+    withheld: Vec<String>,
 }
 
 impl Levels {
@@ -29,6 +32,7 @@ impl Levels {
     pub fn lookup(&self, ctx: &mut Ctx, path: &KeyPath, id: &Id) -> Option<usize> {
         match self.index.get(&id.0) {
             Some(&i) => Some(i),
+            None if self.of_withheld_manifold(&id.0) => None,
             None => {
                 ctx.push(
                     path,
@@ -83,6 +87,20 @@ impl Levels {
         &self.ids
     }
 
+    /// A manifold that did not validate (its own message says why): the
+    /// levels it would have generated are not reported as unknown.
+    pub fn withhold(&mut self, manifold: &str) {
+        self.withheld.push(manifold.to_string());
+    }
+
+    /// Whether `id` is a level a withheld manifold would have generated.
+    fn of_withheld_manifold(&self, id: &str) -> bool {
+        self.withheld.iter().any(|m| {
+            id.strip_prefix(m.as_str())
+                .is_some_and(|r| r.starts_with("_F"))
+        })
+    }
+
     /// One more level (a generated one), after those of `levels:`.
     pub fn push(&mut self, level: Level, energy_ok: bool) {
         self.index.insert(level.id.clone(), self.list.len());
@@ -122,6 +140,7 @@ pub(super) fn levels(raw: &RawScheme, ctx: &mut Ctx) -> Option<Levels> {
         energy_ok: Vec::new(),
         index: HashMap::new(),
         ids: Vec::new(),
+        withheld: Vec::new(),
     };
     let mut seen_count: HashMap<String, usize> = HashMap::new();
     for (id, lvl) in raw_levels {

@@ -52,6 +52,8 @@ pub(super) struct ManifoldInfo {
 pub(super) struct Manifolds {
     pub list: Vec<ManifoldInfo>,
     pub field_tesla: f64,
+    /// Ids of the manifolds that did not validate (each with its message).
+    pub failed: Vec<String>,
 }
 
 impl Manifolds {
@@ -139,6 +141,7 @@ pub(super) fn manifolds(raw: &RawScheme, ctx: &mut Ctx, levels: &mut Levels) -> 
     let mut out = Manifolds {
         list: Vec::new(),
         field_tesla: magnetic_field(raw, ctx),
+        failed: Vec::new(),
     };
     let mp = KeyPath::root().k("manifolds");
     let Some(map) = raw.manifolds.as_ref() else {
@@ -161,12 +164,19 @@ pub(super) fn manifolds(raw: &RawScheme, ctx: &mut Ctx, levels: &mut Levels) -> 
             );
             continue;
         }
-        let Some(m) = m.as_ref() else {
-            ctx.missing(&path.k("J"), "J: a non-negative multiple of 1/2");
-            continue;
+        let info = match m.as_ref() {
+            Some(m) => manifold(ctx, &id.0, m, &path, out.field_tesla, levels),
+            None => {
+                ctx.missing(&path.k("J"), "J: a non-negative multiple of 1/2");
+                None
+            }
         };
-        if let Some(info) = manifold(ctx, &id.0, m, &path, out.field_tesla, levels) {
-            out.list.push(info);
+        match info {
+            Some(info) => out.list.push(info),
+            None => {
+                levels.withhold(&id.0);
+                out.failed.push(id.0.clone());
+            }
         }
     }
     ctx.within(

@@ -111,8 +111,19 @@ pub(crate) fn validate(raw: &RawScheme, ctx: &mut Ctx) -> Option<Model> {
         })
         .collect();
     let polarizations: Vec<Option<[f64; 3]>> = infos.iter().map(|f| f.polarization).collect();
-    let (mut drives, projection) =
-        couplings::drives(ctx, &field_ids.ids, &polarizations, &couplings, &levels)?;
+    let written: Vec<bool> = field_ids
+        .entries
+        .iter()
+        .map(|(_, f, _)| f.is_some_and(|f| f.polarization.is_some()))
+        .collect();
+    let (mut drives, projection) = couplings::drives(
+        ctx,
+        &field_ids.ids,
+        &polarizations,
+        &written,
+        &couplings,
+        &levels,
+    )?;
     let strengths = fields::Strengths {
         fields: &infos,
         paths: field_ids.entries.iter().map(|e| &e.2).collect(),
