@@ -3,4 +3,5 @@
 //! Run one module with `cargo test --release --test scheme scheme_errors::`.
 
 mod scheme_errors;
+mod scheme_level_names;
 mod scheme_robustness;

@@ -11,7 +11,8 @@ use super::super::locate::KeyPath;
 use super::super::raw::{Id, RawScheme};
 use super::super::MAX_LEVELS;
 use super::ctx::{Ctx, Sign};
-use super::{first_valid_id, id_list};
+use super::first_valid_id;
+use super::names::Named;
 use crate::model::Level;
 use crate::units::Kind;
 
@@ -22,19 +23,33 @@ pub(super) struct Levels {
     pub energy_ok: Vec<bool>,
     index: HashMap<String, usize>,
     ids: Vec<String>,
+    /// Groups of generated levels (`names.rs`).
+    pub groups: Vec<super::names::Group>,
+    /// What each manifold generated (`names.rs`).
+    pub generated: Vec<super::names::Generated>,
 }
 
 impl Levels {
-    /// A level reference inside a list: its index, or a message.
+    /// A reference to one level (an id, or a generated level in map form):
+    /// its index, or a message (a group of generated levels is refused
+    /// here; `mixture:` and `tuned.to` read groups through `named`).
     pub fn lookup(&self, ctx: &mut Ctx, path: &KeyPath, id: &Id) -> Option<usize> {
-        match self.index.get(&id.0) {
-            Some(&i) => Some(i),
-            None => {
+        match self.named(id) {
+            Ok(Named::Level(i)) => Some(i),
+            Ok(Named::Group(g)) => {
                 ctx.push(
                     path,
-                    format!("a level id ({})", id_list(&self.ids)),
-                    format!("'{}' (no such level)", id.0),
+                    "one level (a group of generated levels only in mixture: or tuned.to)",
+                    format!(
+                        "'{}', which names {} levels",
+                        id.0,
+                        self.groups[g].members.len()
+                    ),
                 );
+                None
+            }
+            Err((expected, found)) => {
+                ctx.push(path, expected, found);
                 None
             }
         }
@@ -122,6 +137,8 @@ pub(super) fn levels(raw: &RawScheme, ctx: &mut Ctx) -> Option<Levels> {
         energy_ok: Vec::new(),
         index: HashMap::new(),
         ids: Vec::new(),
+        groups: Vec::new(),
+        generated: Vec::new(),
     };
     let mut seen_count: HashMap<String, usize> = HashMap::new();
     for (id, lvl) in raw_levels {

@@ -303,6 +303,7 @@ fn manifold(
         l.omega = template.omega + energy;
         levels.push(l, energy_ok);
     }
+    super::names::register(levels, &info, energy_ok);
     Some(info)
 }
 
