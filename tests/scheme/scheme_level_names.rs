@@ -375,3 +375,19 @@ fn refuses_an_unknown_key_in_a_map_name() {
         }
     }
 }
+
+#[test]
+fn refuses_a_block_style_map_key_at_its_own_line() {
+    let d = one(&with(
+        "initial: S_F1_m0",
+        "initial:\n  mixture:\n    S_F1_m0: 0.5\n    { manifold: S, F: 1, m_F: 3 }: 0.5",
+    ));
+    check(
+        &d,
+        18,
+        5,
+        "initial.mixture.{manifold: S, F: 1, m_F: 3}",
+        "a generated level",
+        "m_F must be one of -F, -F+1, ..., F for F = 1",
+    );
+}
