@@ -181,6 +181,20 @@ pub fn row_from_report(coords: &[f64], rep: &VetReport) -> ScanRow {
     }
 }
 
+/// A `--vary` text with the level names of its PATH written as maps
+/// (`initial.mixture.{manifold: S, F: 2, m_F: 2}=...`) spelt as generated
+/// ids, so the CSV, the scan hash and the overrides see one spelling.
+fn spelled_levels(text: &str) -> Result<String, Error> {
+    match text.split_once('=') {
+        Some((path, rest)) if path.contains('{') => {
+            let path = scheme::level_names_in_path(path)
+                .map_err(|e| bad(&format!("--vary '{text}'"), e))?;
+            Ok(format!("{path}={rest}"))
+        }
+        _ => Ok(text.to_string()),
+    }
+}
+
 /// Parse the `--vary` texts and check what needs no scheme (form, COUNT,
 /// positivity of log ranges).
 pub fn parse_specs(
@@ -196,7 +210,7 @@ pub fn parse_specs(
     }
     let specs = texts
         .iter()
-        .map(|t| VarySpec::parse(t, count_required))
+        .map(|t| VarySpec::parse(&spelled_levels(t)?, count_required))
         .collect::<Result<Vec<_>, _>>()?;
     for s in &specs {
         s.spacing(log)?;

@@ -26,7 +26,7 @@ use serde_json::Value;
 use std::fmt;
 
 use overrides::apply_override;
-pub use overrides::numeric_value_at;
+pub use overrides::{level_names_in_path, numeric_value_at};
 pub use source::{from_bytes, source_from_bytes, unreadable, READ_LIMIT};
 pub use validate::valid_id;
 

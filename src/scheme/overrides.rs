@@ -10,7 +10,8 @@
 
 use super::locate::{KeyPath, Locator};
 use super::raw;
-use super::validate::{generated_id, polarization_component};
+use super::raw::{level_name_text, LEVEL_NAME_KEYS};
+use super::validate::{generated_id, map_name_id, polarization_component};
 use super::{raw_value, read_raw, Diagnostic, SchemeError};
 use serde_json::{Map, Value};
 
@@ -54,6 +55,44 @@ pub fn numeric_value_at(
             format!("{} (not a number)", describe(node)),
         )),
     }
+}
+
+/// A key path with its level parts written as maps (`initial.mixture.
+/// {manifold: S, F: 2, m_F: 2}`, spaces optional) rewritten to the
+/// generated ids they stand for (`initial.mixture.S_F2_m+2`), so that a
+/// scan's columns and hash see one spelling. Err says what is wrong.
+pub fn level_names_in_path(path: &str) -> Result<String, String> {
+    let mut out = String::new();
+    let mut rest = path;
+    while let Some(open) = rest.find('{') {
+        out.push_str(&rest[..open]);
+        let Some(close) = rest[open..].find('}') else {
+            return Err(format!("'{path}': a '{{' without its '}}'"));
+        };
+        let inner = &rest[open + 1..open + close];
+        let mut parts: [Option<String>; 3] = [None, None, None];
+        for item in inner.split(',') {
+            let (k, v) = item
+                .split_once(':')
+                .map(|(k, v)| (k.trim(), v.trim()))
+                .ok_or_else(|| format!("'{path}': '{item}' is not KEY: VALUE"))?;
+            let slot = LEVEL_NAME_KEYS
+                .iter()
+                .position(|x| *x == k)
+                .ok_or_else(|| {
+                    format!("'{path}': a level name takes manifold, F, m_F, not '{k}'")
+                })?;
+            parts[slot] = Some(v.to_string());
+        }
+        if parts[0].is_none() {
+            return Err(format!("'{path}': a level name needs its manifold"));
+        }
+        let id = map_name_id(&level_name_text(&parts)).map_err(|e| format!("'{path}': {e}"))?;
+        out.push_str(&id);
+        rest = &rest[open + close + 1..];
+    }
+    out.push_str(rest);
+    Ok(out)
 }
 
 /// Split "a.b[2].c" / "a.b.2.c" into segments (indices stay text until the
@@ -418,6 +457,22 @@ fn walk_mut<'v>(root: &'v mut Value, segs: &[String]) -> Option<&'v mut Value> {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn rewrites_level_names_in_paths() {
+        assert_eq!(
+            level_names_in_path("initial.mixture.{manifold: S, F: 2, m_F: -2}").unwrap(),
+            "initial.mixture.S_F2_m-2"
+        );
+        assert_eq!(
+            level_names_in_path("initial.{manifold:P,F:1.5,m_F:0.5}").unwrap(),
+            "initial.P_F3/2_m+1/2"
+        );
+        assert_eq!(level_names_in_path("a.b").unwrap(), "a.b");
+        assert!(level_names_in_path("initial.{manifold: S, F: 1, m_F: 2}").is_err());
+        assert!(level_names_in_path("initial.{F: 1}").is_err());
+        assert!(level_names_in_path("initial.{manifold: S").is_err());
+    }
 
     #[test]
     fn splits_paths() {

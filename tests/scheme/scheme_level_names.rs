@@ -391,3 +391,37 @@ fn refuses_a_block_style_map_key_at_its_own_line() {
         "m_F must be one of -F, -F+1, ..., F for F = 1",
     );
 }
+
+#[test]
+fn a_vary_path_may_write_its_level_part_as_a_map() {
+    use levelplan::pipeline::study::parse_specs;
+    let specs = parse_specs(
+        &["initial.mixture.{manifold: S, F: 1, m_F: +1}=0.2..0.8:4".to_string()],
+        true,
+        false,
+    )
+    .expect("parsed");
+    assert_eq!(specs[0].path, "initial.mixture.S_F1_m+1");
+    assert_eq!(specs[0].count, Some(4));
+    let e = parse_specs(
+        &["initial.mixture.{manifold: S, F: 1, m_F: 2}=0..1:2".to_string()],
+        true,
+        false,
+    )
+    .expect_err("refused");
+    assert!(e.to_string().contains("m_F must be one of"), "{e}");
+    // The rewritten path then reaches a key written either way.
+    let text = with(
+        "initial: S_F1_m0",
+        "initial:\n  mixture:\n    { manifold: S, F: 1, m_F: 0 }: 0.5\n    S_F1_m+1: 0.5\n",
+    );
+    let p = Prepared::new(&text, "names.yaml").expect("valid");
+    let m = p
+        .with_overrides(&[
+            (specs[0].path.clone(), "0.25".to_string()),
+            ("initial.mixture.S_F1_m0".to_string(), "0.75".to_string()),
+        ])
+        .expect("overridden");
+    assert_eq!(m.initial()[index(&m, "S_F1_m+1")], 0.25);
+    assert_eq!(m.initial()[index(&m, "S_F1_m0")], 0.75);
+}

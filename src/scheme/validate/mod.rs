@@ -35,7 +35,7 @@ use crate::model::{Coupling, Field, Model};
 
 pub use crate::model::valid_id;
 pub(crate) use ctx::Ctx;
-pub(crate) use names::generated_id;
+pub(crate) use names::{generated_id, map_name_id};
 pub(crate) use polarization::component as polarization_component;
 
 const ID_RULE: &str = "an id made of letters, digits, _ ' + - or /";

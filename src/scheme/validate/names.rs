@@ -124,8 +124,13 @@ pub(crate) fn generated_id(text: &str) -> Option<String> {
     if !text.starts_with('{') {
         return None;
     }
-    let n = read_map_name(text).ok()?;
-    Some(match (n.two_f, n.two_m) {
+    map_name_id(text).ok()
+}
+
+/// The generated id of a name in map form, or what is wrong with it.
+pub(crate) fn map_name_id(text: &str) -> Result<String, String> {
+    let n = read_map_name(text)?;
+    Ok(match (n.two_f, n.two_m) {
         (Some(f), Some(m)) => sublevel_id(&n.manifold, f, m),
         (Some(f), None) => hyperfine_id(&n.manifold, f),
         _ => n.manifold,
