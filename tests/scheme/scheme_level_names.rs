@@ -425,3 +425,48 @@ fn a_vary_path_may_write_its_level_part_as_a_map() {
     assert_eq!(m.initial()[index(&m, "S_F1_m+1")], 0.25);
     assert_eq!(m.initial()[index(&m, "S_F1_m0")], 0.75);
 }
+
+#[test]
+fn an_f_zero_level_is_one_level() {
+    let m = model(&with(
+        "initial: S_F1_m0",
+        "initial: { superposition: { { manifold: S, F: 0 }: 0.5, S_F1_m0: 0.5 } }",
+    ));
+    assert_eq!(m.initial()[index(&m, "S_F0_m0")], 0.5);
+    let m = model(&with("initial: S_F1_m0", "initial: S_F0"));
+    assert_eq!(m.initial()[index(&m, "S_F0_m0")], 1.0);
+}
+
+#[test]
+fn refuses_other_keys_in_an_initial_level_name() {
+    let d = one(&with(
+        "initial: S_F1_m0",
+        "initial: { manifold: S, F: 1, m_F: 0, J: 1 }",
+    ));
+    check(
+        &d,
+        15,
+        39,
+        "initial.J",
+        "a level name of the keys manifold, F, m_F",
+        "'J'",
+    );
+}
+
+#[test]
+fn refuses_a_map_as_a_manifold_id() {
+    let e = scheme::parse(
+        &with("  S: { energy", "  { manifold: S }: { energy"),
+        "names.yaml",
+    )
+    .expect_err("refused");
+    let d = &e.diagnostics[0];
+    check(
+        d,
+        3,
+        3,
+        "manifolds.{manifold: S}",
+        "a manifold id: an id made of letters",
+        "'{manifold: S}'",
+    );
+}

@@ -32,7 +32,7 @@ pub(super) fn initial(raw: &RawScheme, ctx: &mut Ctx, levels: &Levels) -> (Vec<f
             }
         }
         Some(Initial::Map(m)) => {
-            if let Some(id) = map_name(m, levels) {
+            if let Some(id) = map_name(ctx, &ip, m, levels) {
                 if let Some(i) = levels.lookup(ctx, &ip, &id) {
                     initial[i] = 1.0;
                 }
@@ -100,17 +100,25 @@ fn explicit_form<'m>(
 
 /// `initial: { manifold: S, F: 2, m_F: 2 }`: the map is one level's name
 /// (when no level is called `manifold`), as its text form.
-fn map_name(m: &Ordered<InitialValue>, levels: &Levels) -> Option<Id> {
+fn map_name(ctx: &mut Ctx, ip: &KeyPath, m: &Ordered<InitialValue>, levels: &Levels) -> Option<Id> {
+    let is_name =
+        m.0.iter().any(|(k, _)| k.0 == "manifold") && levels.index_of("manifold").is_none();
+    if !is_name {
+        return None;
+    }
     let mut parts: [Option<String>; 3] = [None, None, None];
     for (k, v) in &m.0 {
-        let slot = LEVEL_NAME_KEYS.iter().position(|x| *x == k.0)?;
-        let InitialValue::Population(Some(v)) = v else {
-            return None;
-        };
-        parts[slot] = Some(v.text());
+        let slot = LEVEL_NAME_KEYS.iter().position(|x| *x == k.0);
+        match (slot, v) {
+            (Some(slot), InitialValue::Population(Some(v))) => parts[slot] = Some(v.text()),
+            _ => ctx.push(
+                &ip.k(&k.0),
+                "a level name of the keys manifold, F, m_F (each a single value)",
+                format!("'{}'", k.0),
+            ),
+        }
     }
-    (parts[0].is_some() && levels.index_of("manifold").is_none())
-        .then(|| Id(level_name_text(&parts)))
+    Some(Id(level_name_text(&parts)))
 }
 
 /// A map of level id: population at `ip`, summing to 1, into `initial`.

@@ -36,6 +36,10 @@ impl Levels {
     pub fn lookup(&self, ctx: &mut Ctx, path: &KeyPath, id: &Id) -> Option<usize> {
         match self.named(id) {
             Ok(Named::Level(i)) => Some(i),
+            // An F = 0 level of a manifold resolved into sublevels is one level.
+            Ok(Named::Group(g)) if self.groups[g].members.len() == 1 => {
+                Some(self.groups[g].members[0])
+            }
             Ok(Named::Group(g)) => {
                 ctx.push(
                     path,

@@ -159,6 +159,14 @@ pub(super) fn manifolds(raw: &RawScheme, ctx: &mut Ctx, levels: &mut Levels) -> 
             );
             continue;
         }
+        if !super::valid_id(&id.0) {
+            ctx.push(
+                &path,
+                format!("a manifold id: {}", super::ID_RULE),
+                format!("'{}'", id.0),
+            );
+            continue;
+        }
         let Some(m) = m.as_ref() else {
             ctx.missing(&path.k("J"), "J: a non-negative multiple of 1/2");
             continue;
