@@ -267,17 +267,21 @@ impl TuneRequest {
 
     fn goal(&self, level_ids: &[String]) -> Result<TuneGoal, Error> {
         match &self.maximize {
-            Some(id) => Ok(TuneGoal::Maximize {
-                level: level_ids.iter().position(|l| l == id).ok_or_else(|| {
-                    bad(
-                        "--maximize",
-                        format!(
-                            "no level '{id}' in the scheme (levels: {})",
-                            level_ids.join(", ")
-                        ),
-                    )
-                })?,
-            }),
+            Some(written) => {
+                // A generated level may be written as a map.
+                let id = &scheme::level_names_in_path(written).map_err(|e| bad("--maximize", e))?;
+                Ok(TuneGoal::Maximize {
+                    level: level_ids.iter().position(|l| l == id).ok_or_else(|| {
+                        bad(
+                            "--maximize",
+                            format!(
+                                "no level '{id}' in the scheme (levels: {})",
+                                level_ids.join(", ")
+                            ),
+                        )
+                    })?,
+                })
+            }
             None if self.shortest => Ok(TuneGoal::Shortest { goal: self.goal }),
             None => Err(bad("tune", "give --maximize LEVEL or --shortest")),
         }

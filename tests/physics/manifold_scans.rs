@@ -325,3 +325,40 @@ fn remedy_at_length_stretches_the_whole_beam() {
         rep.levels[k].id
     );
 }
+
+#[test]
+fn tune_finds_the_zeeman_resonance_of_a_level_named_as_a_map() {
+    use levelplan::pipeline::study::{tune, Study, TuneRequest};
+    use levelplan::scheme::SchemeSource;
+    let text = RB87.replace("DETUNING", "14 MHz");
+    let study = Study::new(
+        text,
+        SchemeSource {
+            path: "rb87.yaml".into(),
+            sha256: "-".into(),
+        },
+    );
+    let req = TuneRequest {
+        vary: "magnetic_field=8G..12G:41".into(),
+        log: false,
+        maximize: Some("{manifold: P, F: 3, m_F: 3}".into()),
+        shortest: false,
+        goal: 0.99,
+        tolerance: None,
+        xtol: 1e-6,
+    };
+    let pool = levelplan::scan::thread_pool(Some(1)).expect("pool");
+    let rep = tune(&study, &req, &pool).expect("tuned");
+    let found = rep.found.expect("a maximum");
+    // The same linear Zeeman prediction as the scan test above (Steck's
+    // Rb-87 constants, Lande g_F with the nuclear term).
+    let g2 = lande_g_f(2.0, 0.5, 1.5, 2.002_331_13, -0.000_995_141_4);
+    let g3 = lande_g_f(3.0, 1.5, 1.5, 1.3362, -0.000_995_141_4);
+    let predicted = 14.0 / ((3.0 * g3 - 2.0 * g2) * MU_B_MHZ_PER_G);
+    eprintln!("tune: {} G, predicted {predicted} G", found.value);
+    assert!(
+        (found.value - predicted).abs() < 1e-3,
+        "tune found {} G, the linear Zeeman shift predicts {predicted} G",
+        found.value
+    );
+}
