@@ -5,4 +5,5 @@
 mod manifold_errors;
 mod manifold_origin;
 mod scheme_errors;
+mod scheme_level_names;
 mod scheme_robustness;

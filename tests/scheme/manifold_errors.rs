@@ -337,3 +337,35 @@ fn a_failed_manifold_is_reported_once() {
         "'Q_F2_m+1' (no such level)",
     );
 }
+
+/// Regression (found merging map-form names with the once-only rule): a
+/// map-form name, an F level or a manifold of a failed manifold, in
+/// `initial`, a mixture or `tuned.to`, adds no 'no such level' message.
+#[test]
+fn names_in_map_form_of_a_failed_manifold_are_not_reported_again() {
+    let bad = with("J: 1/2", "J: 1/3");
+    for (from, to) in [
+        (
+            "initial: S_F2_m+1",
+            "initial: { manifold: S, F: 2, m_F: 1 }",
+        ),
+        (
+            "initial: S_F2_m+1",
+            "initial: { mixture: { { manifold: S, F: 2 }: 1 } }",
+        ),
+        (
+            "initial: S_F2_m+1",
+            "initial: { mixture: { S_F1: 0.5, S_F2_m+1: 0.5 } }",
+        ),
+        ("to: [S_F2_m+2, P_F3_m+3]", "to: [S, P]"),
+        (
+            "to: [S_F2_m+2, P_F3_m+3]",
+            "to: [{ manifold: S, F: 2 }, { manifold: P, F: 3 }]",
+        ),
+    ] {
+        assert_eq!(bad.matches(from).count(), 1, "{from}");
+        let e = err(&bad.replacen(from, to, 1));
+        assert_eq!(e.diagnostics.len(), 1, "{to}:\n{e}");
+        assert_eq!(e.diagnostics[0].path, "manifolds.S.J", "{to}:\n{e}");
+    }
+}

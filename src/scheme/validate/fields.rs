@@ -185,13 +185,14 @@ fn tuned(
     levels: &Levels,
     couplings: &[Option<CouplingInfo>],
 ) -> Option<f64> {
-    let pr = levels.pair(ctx, &tp.k("to"), &t.to);
+    let pr = levels.tuning_pair(ctx, &tp.k("to"), &t.to);
     let det = ctx.req_quantity(&tp.k("detuning"), &t.detuning, Kind::Frequency, Sign::Any);
     let (a, b) = pr?;
-    let joined = couplings
-        .iter()
-        .flatten()
-        .any(|c| (c.lower == a && c.upper == b) || (c.lower == b && c.upper == a));
+    let (ma, mb) = (levels.members(a), levels.members(b));
+    let joined = couplings.iter().flatten().any(|c| {
+        (ma.contains(&c.lower) && mb.contains(&c.upper))
+            || (mb.contains(&c.lower) && ma.contains(&c.upper))
+    });
     if !joined && couplings.iter().any(Option::is_none) {
         // A coupling that did not validate may be the one meant; its own
         // message says why.
@@ -210,10 +211,11 @@ fn tuned(
         );
         return None;
     }
-    let (Some(det), true) = (det, levels.energy_ok[a] && levels.energy_ok[b]) else {
+    let (Some(det), Some(ea), Some(eb)) = (det, levels.tuning_energy(a), levels.tuning_energy(b))
+    else {
         return None;
     };
-    let w_ab = (levels.list[a].omega - levels.list[b].omega).abs();
+    let w_ab = (ea - eb).abs();
     let w = w_ab + det;
     if w > 0.0 && w.is_finite() {
         return Some(w);

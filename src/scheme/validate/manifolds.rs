@@ -164,6 +164,14 @@ pub(super) fn manifolds(raw: &RawScheme, ctx: &mut Ctx, levels: &mut Levels) -> 
             );
             continue;
         }
+        if !super::valid_id(&id.0) {
+            ctx.push(
+                &path,
+                format!("a manifold id: {}", super::ID_RULE),
+                format!("'{}'", id.0),
+            );
+            continue;
+        }
         let info = match m.as_ref() {
             Some(m) => manifold(ctx, &id.0, m, &path, out.field_tesla, levels),
             None => {
@@ -324,6 +332,7 @@ fn manifold(
         l.origin = Some(origin);
         levels.push(l, energy_ok);
     }
+    super::names::register(levels, &info, energy_ok);
     Some(info)
 }
 

@@ -22,6 +22,7 @@ mod levels;
 mod limits;
 mod manifold_couplings;
 mod manifolds;
+mod names;
 mod open;
 mod polarization;
 mod window;
@@ -34,6 +35,8 @@ use crate::model::{Coupling, Field, Model};
 
 pub use crate::model::valid_id;
 pub(crate) use ctx::Ctx;
+pub(crate) use names::{generated_id, map_name_id};
+pub(crate) use polarization::component as polarization_component;
 
 const ID_RULE: &str = "an id made of letters, digits, _ ' + - or /";
 
