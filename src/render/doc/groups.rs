@@ -132,6 +132,34 @@ pub(super) fn entries(quantum: &[Option<&QuantumNumbers>], mode: Sublevels) -> V
         .collect()
 }
 
+/// The rows of a grouped level table and the first group's label (None:
+/// no group, so no "largest sublevel" column). A row of one level gets a
+/// dash in that column, at `column` (past the end: appended).
+pub(super) fn table_rows(
+    quantum: &[Option<&QuantumNumbers>],
+    mode: Sublevels,
+    column: usize,
+    one: impl Fn(usize) -> Vec<super::Cell>,
+    group: impl Fn(&Group) -> Vec<super::Cell>,
+) -> (Vec<Vec<super::Cell>>, Option<String>) {
+    let entries = entries(quantum, mode);
+    let label = first_group(&entries).map(Group::label);
+    let rows = entries
+        .iter()
+        .map(|e| match e {
+            Entry::One(k) => {
+                let mut cells = one(*k);
+                if label.is_some() {
+                    cells.insert(column.min(cells.len()), super::Cell::dash());
+                }
+                cells
+            }
+            Entry::Group(g) => group(g),
+        })
+        .collect();
+    (rows, label)
+}
+
 /// The first group among the entries, if any (the table then has its
 /// extra column, and its note names this group).
 pub(super) fn first_group(entries: &[Entry]) -> Option<&Group> {

@@ -5,7 +5,7 @@
 //! Owns: which sections an inspect report has and their wording. Must not:
 //! compute (every number comes from the report) or pick a format.
 
-use super::groups::{self, Entry, Group, Sublevels};
+use super::groups::{self, Group, Sublevels};
 use super::{
     initial_note, largest_cell, numfmt, provenance_meta, safety_section, table, window_meta, Align,
     Cell, Doc, Mark, Section, TWO_PI,
@@ -136,21 +136,13 @@ fn manifolds_section(centres: &[ManifoldCentre]) -> Option<Section> {
 fn levels_section(r: &InspectReport, mode: Sublevels) -> Section {
     use Align::*;
     let quantum: Vec<_> = r.levels.iter().map(|l| l.quantum.as_ref()).collect();
-    let entries = groups::entries(&quantum, mode);
-    let grouped = groups::first_group(&entries).map(Group::label);
-    let rows = entries
-        .iter()
-        .map(|e| match e {
-            Entry::One(k) => {
-                let mut cells = level_cells(&r.levels[*k]);
-                if grouped.is_some() {
-                    cells.push(Cell::dash());
-                }
-                cells
-            }
-            Entry::Group(g) => group_cells(&r.levels, g),
-        })
-        .collect();
+    let (rows, grouped) = groups::table_rows(
+        &quantum,
+        mode,
+        usize::MAX,
+        |k| level_cells(&r.levels[k]),
+        |g| group_cells(&r.levels, g),
+    );
     let mut headers = vec![
         "level", "label", "energy", "energy/h", "lifetime", "role", "initial",
     ];

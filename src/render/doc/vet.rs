@@ -5,7 +5,7 @@
 //! group of sublevels (`groups.rs` says which rows form one). Must not:
 //! compute (every number comes from the report) or pick a format.
 
-use super::groups::{self, Entry, Group, Sublevels};
+use super::groups::{self, Group, Sublevels};
 use super::{
     initial_note, largest_cell, method_name, model_text, numfmt, order_name, provenance_meta,
     safety_section, table, window_meta, Align, Cell, Doc, Mark, Section, TWO_PI,
@@ -77,21 +77,13 @@ fn vet_meta(r: &VetReport) -> Vec<(String, String)> {
 fn levels_section(r: &VetReport, mode: Sublevels) -> Section {
     use Align::*;
     let quantum: Vec<_> = r.levels.iter().map(|l| l.quantum.as_ref()).collect();
-    let entries = groups::entries(&quantum, mode);
-    let grouped = groups::first_group(&entries).map(Group::label);
-    let rows = entries
-        .iter()
-        .map(|e| match e {
-            Entry::One(k) => {
-                let mut cells = level_cells(&r.levels[*k]);
-                if grouped.is_some() {
-                    cells.insert(3, Cell::dash());
-                }
-                cells
-            }
-            Entry::Group(g) => group_cells(&r.levels, g),
-        })
-        .collect();
+    let (rows, grouped) = groups::table_rows(
+        &quantum,
+        mode,
+        3,
+        |k| level_cells(&r.levels[k]),
+        |g| group_cells(&r.levels, g),
+    );
     let mut headers = vec![
         "level",
         "role",

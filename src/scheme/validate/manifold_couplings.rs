@@ -305,6 +305,16 @@ fn shared_rates(ctx: &mut Ctx, specs: &[Spec], manifolds: &Manifolds) -> Vec<(f6
     out
 }
 
+// `sublevel_couplings` and `hyperfine_couplings` take the same seven
+// arguments: they are the two answers to one question (which couplings and
+// which decay a manifold coupling generates) for `resolve: sublevels` and
+// `resolve: hyperfine`. Their bodies share nothing (Wigner-Eckart per
+// sublevel pair with coherent channels, against S_FF' line strengths and
+// an incoherent decay with branching fractions per upper F level), so the
+// repeated signature stays.
+
+/// Every sublevel coupling of a manifold coupling and its decay as one
+/// coherent channel per photon polarisation.
 fn sublevel_couplings(
     spec: &Spec,
     lo: &ManifoldInfo,
@@ -349,6 +359,8 @@ fn sublevel_couplings(
     }
 }
 
+/// Every F-level coupling of a manifold coupling (S_FF'/3 of the reduced
+/// dipole squared) and each upper F level's decay with its branching.
 fn hyperfine_couplings(
     spec: &Spec,
     lo: &ManifoldInfo,
