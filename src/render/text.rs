@@ -171,6 +171,14 @@ mod tests {
             .collect()
     }
 
+    /// The line of the populations table's heading.
+    fn populations_heading(lines: &[String]) -> usize {
+        lines
+            .iter()
+            .position(|l| l == "Populations at the end of the window")
+            .expect("a populations table")
+    }
+
     fn text_of(doc: &crate::render::doc::Doc, color: bool) -> String {
         let mut b = Vec::new();
         super::write(doc, color, &mut b).unwrap();
@@ -182,10 +190,7 @@ mod tests {
         let r = sample::vet_report_with_sublevels();
         let t = text_of(&vet_doc(&r, Sublevels::Grouped), false);
         let lines = squashed(&t);
-        let head = lines
-            .iter()
-            .position(|l| l == "Populations at the end of the window")
-            .unwrap();
+        let head = populations_heading(&lines);
         assert_eq!(
             &lines[head + 1..head + 6],
             [
@@ -215,10 +220,7 @@ mod tests {
         let r = sample::vet_report_with_sublevels();
         let t = text_of(&vet_doc(&r, Sublevels::Each), false);
         let lines = squashed(&t);
-        let head = lines
-            .iter()
-            .position(|l| l == "Populations at the end of the window")
-            .unwrap();
+        let head = populations_heading(&lines);
         assert_eq!(
             lines[head + 1],
             "level role final peak estimate order final/est tolerance status"
