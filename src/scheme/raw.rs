@@ -438,6 +438,9 @@ pub struct RawCoupling {
     pub fields: Option<Vec<Id>>,
 }
 
+// Every optional key of a raw struct carries the same serde attribute (an
+// absent key stays absent when overrides serialise the scheme): one field
+// per key of the scheme contract, so the repetition is the format's shape.
 #[derive(Debug, Clone, Default, Deserialize, Serialize)]
 #[serde(deny_unknown_fields, rename = "field")]
 pub struct RawField {

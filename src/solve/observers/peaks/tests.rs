@@ -3,6 +3,10 @@
 use super::*;
 use crate::solve::observers::NoDense;
 
+// The test equations here and in norm.rs's tests implement the same small
+// trait, so their methods look alike line by line; each pins a different
+// behaviour (interpolant, loss), which is why they stay apart.
+
 /// One level whose population is the state itself (default interpolant:
 /// Hermite on the population).
 struct Direct;
@@ -184,6 +188,8 @@ impl Dense for SineDense {
 // highest of 33 points of sin^2(t / 2) around its maximum at pi is off by
 // about d^4 / 48 with d = 0.8 / 32, i.e. 1e-8 (the quartic term of the
 // Taylor series; elementary calculus).
+// The two `observe` calls below differ only in the dense states they get:
+// that difference is the test.
 #[test]
 fn refined_interior_uses_dense_states() {
     let amp = |t: f64| [(0.5 * t).sin(), 0.0];
