@@ -62,6 +62,14 @@ impl Error {
         }
     }
 
+    /// The message as it may be shown on a terminal: control characters
+    /// other than the line breaks between messages as `(0xNN)`, and any
+    /// run of more than [`LONG_RUN`] characters without a space (a huge id
+    /// or value pasted into a scheme) cut to its start and its length.
+    pub fn shown(&self) -> String {
+        shown(&self.to_string())
+    }
+
     /// The process exit status for this error.
     pub fn exit_code(&self) -> i32 {
         match self {
@@ -69,5 +77,58 @@ impl Error {
             Error::AtPoint { source, .. } => source.exit_code(),
             _ => EXIT_FAILED,
         }
+    }
+}
+
+/// Longest run of non-space characters a message shows whole.
+pub const LONG_RUN: usize = 160;
+
+/// `msg` made safe and short for a terminal (see [`Error::shown`]).
+pub fn shown(msg: &str) -> String {
+    let mut out = String::with_capacity(msg.len().min(4096));
+    let mut run = String::new();
+    let flush = |run: &mut String, out: &mut String| {
+        let n = run.chars().count();
+        if n > LONG_RUN {
+            let head: String = run.chars().take(60).collect();
+            out.push_str(&format!("{head}... ({n} characters in all)"));
+        } else {
+            out.push_str(run);
+        }
+        run.clear();
+    };
+    for ch in msg.chars() {
+        if ch == ' ' || ch == '\n' {
+            flush(&mut run, &mut out);
+            out.push(ch);
+        } else if ch.is_control() {
+            run.push_str(&format!("(0x{:02x})", ch as u32));
+        } else {
+            run.push(ch);
+        }
+    }
+    flush(&mut run, &mut out);
+    out
+}
+
+#[cfg(test)]
+mod shown_tests {
+    use super::shown;
+
+    /// Regression: a 900 kB level id came back whole in the message, and an
+    /// escape byte from a scheme reached the terminal raw.
+    #[test]
+    fn long_runs_are_cut_and_control_characters_shown() {
+        let id = "Z".repeat(900_000);
+        let m = shown(&format!(
+            "s.yaml:27:10: initial: found '{id}' (no such level)"
+        ));
+        assert!(m.len() < 200, "{} bytes", m.len());
+        assert!(m.contains("'ZZZZ"), "{m}");
+        assert!(m.contains("(900002 characters in all)"), "{m}");
+        assert!(m.ends_with(" (no such level)"), "{m}");
+        assert_eq!(shown("a\u{1b}[31mb\u{7}\nnext"), "a(0x1b)[31mb(0x07)\nnext");
+        let plain = "s.yaml:3:1: levels: expected a map, found a list";
+        assert_eq!(shown(plain), plain);
     }
 }

@@ -34,7 +34,7 @@ fn main() -> ExitCode {
         Err(e) if e.is_broken_pipe() => status(EXIT_OK),
         Err(e) => {
             // stderr may be closed too (`2>&1 | head`): never panic over it.
-            let _ = writeln!(std::io::stderr(), "levelplan: error: {e}");
+            let _ = writeln!(std::io::stderr(), "levelplan: error: {}", e.shown());
             status(e.exit_code())
         }
     }

@@ -8,6 +8,7 @@ use std::io::{self, Write};
 
 /// Render a document as LaTeX fragments.
 pub fn write(doc: &Doc, w: &mut dyn Write) -> io::Result<()> {
+    let doc = &doc.visible();
     writeln!(
         w,
         "% {} -- requires \\usepackage{{booktabs}}",

@@ -15,6 +15,7 @@ fn cell(s: &str, mark: Mark) -> String {
 
 /// Render a document as Markdown.
 pub fn write(doc: &Doc, w: &mut dyn Write) -> io::Result<()> {
+    let doc = &doc.visible();
     writeln!(w, "### {}", doc.title)?;
     writeln!(w)?;
     for (k, v) in &doc.meta {

@@ -52,6 +52,7 @@ fn write_table(t: &Table, color: bool, w: &mut dyn Write) -> io::Result<()> {
 
 /// Render a document as aligned text.
 pub fn write(doc: &Doc, color: bool, w: &mut dyn Write) -> io::Result<()> {
+    let doc = &doc.visible();
     writeln!(w, "{}", doc.title)?;
     let key_width = doc.meta.iter().map(|(k, _)| k.len()).max().unwrap_or(0);
     for (k, v) in &doc.meta {

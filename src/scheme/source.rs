@@ -44,6 +44,15 @@ pub fn source_from_bytes(bytes: &[u8], name: &str) -> Result<(String, SchemeSour
             ),
         ));
     }
+    if let Some(enc) = wide_encoding(bytes) {
+        return Err(SchemeError::one(
+            name,
+            Diagnostic::whole_file(
+                "UTF-8 text (a UTF-8 byte-order mark is fine)",
+                format!("a {enc} file (save it as UTF-8)"),
+            ),
+        ));
+    }
     let text = match std::str::from_utf8(bytes) {
         Ok(t) => t.to_string(),
         Err(e) => return Err(not_utf8(bytes, e.valid_up_to(), name)),
@@ -59,6 +68,29 @@ pub fn source_from_bytes(bytes: &[u8], name: &str) -> Result<(String, SchemeSour
             sha256,
         },
     ))
+}
+
+/// The UTF-16 or UTF-32 encoding a file is in, from its byte-order mark or,
+/// without one, from the zero bytes beside the ASCII characters a scheme
+/// starts with (`ti\0t\0...`). None for anything else.
+fn wide_encoding(bytes: &[u8]) -> Option<&'static str> {
+    let b = |i: usize| bytes.get(i).copied();
+    match (b(0), b(1), b(2), b(3)) {
+        (Some(0xff), Some(0xfe), Some(0), Some(0)) => return Some("UTF-32 (little-endian)"),
+        (Some(0), Some(0), Some(0xfe), Some(0xff)) => return Some("UTF-32 (big-endian)"),
+        (Some(0xff), Some(0xfe), ..) => return Some("UTF-16 (little-endian)"),
+        (Some(0xfe), Some(0xff), ..) => return Some("UTF-16 (big-endian)"),
+        (Some(x), Some(0), Some(0), Some(0)) if x != 0 => return Some("UTF-32 (little-endian)"),
+        (Some(0), Some(0), Some(0), Some(x)) if x != 0 => return Some("UTF-32 (big-endian)"),
+        (Some(x), Some(0), Some(y), Some(0)) if x != 0 && y != 0 => {
+            return Some("UTF-16 (little-endian)")
+        }
+        (Some(0), Some(x), Some(0), Some(y)) if x != 0 && y != 0 => {
+            return Some("UTF-16 (big-endian)")
+        }
+        _ => {}
+    }
+    None
 }
 
 /// The first byte that is not UTF-8, with its line and column.

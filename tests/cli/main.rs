@@ -11,6 +11,7 @@ mod cli;
 mod cli_scan;
 mod cookbook;
 mod honesty;
+mod hygiene;
 mod json_golden;
 mod limits;
 mod model_text;

@@ -334,3 +334,46 @@ fn merge_keys_are_ordinary_keys() {
     assert_eq!(d.path, "fields.probe.envelope.<<");
     assert_eq!(d.found, "unknown key '<<'");
 }
+
+/// Regression: a scheme saved with a UTF-8 byte-order mark (editors on some
+/// systems write one) reads like the same text without it.
+#[test]
+fn a_utf8_byte_order_mark_is_accepted() {
+    let text = small("\"1 ea0\"");
+    let plain = levelplan::scheme::from_bytes(text.as_bytes(), "s.yaml").unwrap();
+    let mut bom = vec![0xef, 0xbb, 0xbf];
+    bom.extend_from_slice(text.as_bytes());
+    let (m, _) = levelplan::scheme::from_bytes(&bom, "s.yaml").unwrap();
+    assert_eq!(
+        format!("{:?}", m.levels()),
+        format!("{:?}", plain.0.levels())
+    );
+}
+
+/// Regression: a UTF-16 file was refused as "a byte that is not UTF-8
+/// (0xff) at offset 0"; it is now named, with what to do.
+#[test]
+fn utf16_and_utf32_files_are_named() {
+    let text = small("\"1 ea0\"");
+    let utf16le: Vec<u8> = [0xff, 0xfe]
+        .into_iter()
+        .chain(text.encode_utf16().flat_map(u16::to_le_bytes))
+        .collect();
+    let utf16be_no_bom: Vec<u8> = text.encode_utf16().flat_map(u16::to_be_bytes).collect();
+    let utf32le: Vec<u8> = text
+        .chars()
+        .flat_map(|c| (c as u32).to_le_bytes())
+        .collect();
+    for (bytes, name) in [
+        (utf16le, "UTF-16 (little-endian)"),
+        (utf16be_no_bom, "UTF-16 (big-endian)"),
+        (utf32le, "UTF-32 (little-endian)"),
+    ] {
+        let e = levelplan::scheme::from_bytes(&bytes, "s.yaml").unwrap_err();
+        let m = e.to_string();
+        assert!(
+            m.contains(&format!("found a {name} file (save it as UTF-8)")),
+            "{m}"
+        );
+    }
+}

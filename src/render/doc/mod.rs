@@ -130,6 +130,63 @@ pub struct Doc {
     pub sections: Vec<Section>,
 }
 
+impl Doc {
+    /// The document with every string made safe to show: a line break or
+    /// tab becomes a space (a title or label then cannot break a LaTeX
+    /// comment or a Markdown heading) and any other control character
+    /// becomes `(0x1b)`, so no byte from a scheme reaches a terminal raw.
+    /// Every writer shows this form.
+    pub fn visible(&self) -> Doc {
+        let cell = |c: &Cell| Cell {
+            plain: visible(&c.plain),
+            latex: visible(&c.latex),
+            mark: c.mark,
+        };
+        Doc {
+            title: visible(&self.title),
+            meta: self
+                .meta
+                .iter()
+                .map(|(k, v)| (visible(k), visible(v)))
+                .collect(),
+            sections: self
+                .sections
+                .iter()
+                .map(|s| Section {
+                    heading: visible(&s.heading),
+                    table: s.table.as_ref().map(|t| Table {
+                        headers: t.headers.iter().map(|h| visible(h)).collect(),
+                        align: t.align.clone(),
+                        rows: t
+                            .rows
+                            .iter()
+                            .map(|r| r.iter().map(cell).collect())
+                            .collect(),
+                    }),
+                    notes: s.notes.iter().map(|n| visible(n)).collect(),
+                })
+                .collect(),
+        }
+    }
+}
+
+/// `s` with line breaks and tabs as spaces and other control characters
+/// (C0, DEL, C1) as `(0xNN)`.
+pub fn visible(s: &str) -> String {
+    if !s.chars().any(char::is_control) {
+        return s.to_string();
+    }
+    let mut out = String::with_capacity(s.len() + 8);
+    for ch in s.chars() {
+        match ch {
+            '\n' | '\r' | '\t' => out.push(' '),
+            c if c.is_control() => out.push_str(&format!("(0x{:02x})", c as u32)),
+            c => out.push(c),
+        }
+    }
+    out
+}
+
 /// Escape text for LaTeX.
 pub fn latex_escape(s: &str) -> String {
     let mut out = String::with_capacity(s.len());
