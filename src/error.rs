@@ -65,7 +65,8 @@ impl Error {
     /// The message as it may be shown on a terminal: control characters
     /// other than the line breaks between messages as `(0xNN)`, and any
     /// run of more than [`LONG_RUN`] characters without a space (a huge id
-    /// or value pasted into a scheme) cut to its start and its length.
+    /// or value pasted into a scheme) cut to its start and its length; a
+    /// line still longer than [`LONG_LINE`] keeps its start and end.
     pub fn shown(&self) -> String {
         shown(&self.to_string())
     }
@@ -108,7 +109,26 @@ pub fn shown(msg: &str) -> String {
         }
     }
     flush(&mut run, &mut out);
-    out
+    out.split('\n')
+        .map(capped_line)
+        .collect::<Vec<_>>()
+        .join("\n")
+}
+
+/// Longest message line shown whole.
+pub const LONG_LINE: usize = 1200;
+
+/// A line of at most [`LONG_LINE`] characters as it is; a longer one (a
+/// long value with spaces, quoted back in a message) as its first 800 and
+/// last 200 characters around what was left out.
+fn capped_line(line: &str) -> String {
+    let n = line.chars().count();
+    if n <= LONG_LINE {
+        return line.to_string();
+    }
+    let head: String = line.chars().take(800).collect();
+    let tail: String = line.chars().skip(n - 200).collect();
+    format!("{head} [... {} characters left out ...] {tail}", n - 1000)
 }
 
 #[cfg(test)]
@@ -128,6 +148,11 @@ mod shown_tests {
         assert!(m.contains("(900002 characters in all)"), "{m}");
         assert!(m.ends_with(" (no such level)"), "{m}");
         assert_eq!(shown("a\u{1b}[31mb\u{7}\nnext"), "a(0x1b)[31mb(0x07)\nnext");
+        let spaced = format!("found the string '{}'", "1e-8,1e0 ".repeat(20_000));
+        let m = shown(&format!("{spaced}\nsecond line"));
+        assert!(m.len() < 1200, "{} bytes", m.len());
+        assert!(m.contains("characters left out"), "{m}");
+        assert!(m.ends_with("'\nsecond line"), "{m}");
         let plain = "s.yaml:3:1: levels: expected a map, found a list";
         assert_eq!(shown(plain), plain);
     }
