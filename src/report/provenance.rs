@@ -42,4 +42,8 @@ pub struct SolverFacts {
     pub detuning_cutoff: f64,
     pub steps: u64,
     pub evaluations: u64,
+    /// Peaks recorded only at the ends of sub-steps the step budget
+    /// stretched: lower bounds (absent when false).
+    #[serde(skip_serializing_if = "std::ops::Not::not")]
+    pub peaks_lower_bounds: bool,
 }

@@ -120,6 +120,7 @@ pub(crate) fn vet_report() -> VetReport {
             detuning_cutoff: TWO_PI * 1e12,
             steps: 40,
             evaluations: 0,
+            peaks_lower_bounds: false,
         },
         provenance: Provenance::new("demo.yaml", "ab12cd34ef56ab12cd34ef56"),
         title: Some("Test & scheme_1 at 50% #2".into()),

@@ -526,6 +526,7 @@ pub fn vet(
             detuning_cutoff: model.solver.detuning_cutoff,
             steps: solution.steps,
             evaluations: solution.evaluations,
+            peaks_lower_bounds: solution.peaks_at_ends_only,
         },
         tolerance,
         window: (model.window.start, model.window.end),

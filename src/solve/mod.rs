@@ -107,6 +107,9 @@ pub struct Solution {
     /// Largest population of each level during the window; the final
     /// populations where `SolveOptions::peaks` is false.
     pub peak_populations: Vec<f64>,
+    /// The peaks are lower bounds: the exact stepper recorded them at the
+    /// ends of sub-steps that the step budget stretched.
+    pub peaks_at_ends_only: bool,
     /// Population lost by decay at the readout, 1 - sum P predicted by the
     /// decay terms.
     pub lost: f64,
@@ -252,7 +255,12 @@ fn run<E: Equation>(
     let mut end = vec![0.0; eq.levels()];
     eq.populations(&y, &mut end);
     let peak_populations = match obs.peaks {
-        Some(p) => p.peaks.iter().zip(&end).map(|(p, f)| p.max(*f)).collect(),
+        Some(p) => p
+            .peaks
+            .iter()
+            .zip(&end)
+            .map(|(p, f)| p.max(f.min(1.0)))
+            .collect(),
         None => end.clone(),
     };
     let positivity_error = obs.positivity.error.max(readout::final_defect(eq, &y));
@@ -269,6 +277,7 @@ fn run<E: Equation>(
         scattered_photons: r.scattered,
         positivity_error,
         peak_populations,
+        peaks_at_ends_only: stats.peaks_at_ends_only,
         lost: r.lost,
         window_end_lost: eq.lost(&y),
         norm_error: obs.norm.error.max(obs.norm.drift(eq, &y)),

@@ -260,6 +260,9 @@ fn level_notes(r: &VetReport) -> Vec<String> {
     let mut notes = vec![
         "final and peak: exact propagation; estimate: perturbation theory of the stated order from the initial populations; LEAK: spectator above its tolerance; est?: estimate above 0.1 or off the exact value by more than a factor 2.".into(),
     ];
+    if r.solver.peaks_lower_bounds {
+        notes.push("peak: sampled finely over the start of each constant stretch, then only at the ends of sub-steps the step budget lengthened: a lower bound where the largest population comes later (a larger --step-budget samples throughout).".into());
+    }
     let decay_fed = r
         .levels
         .iter()

@@ -23,6 +23,10 @@ pub enum Interior {
     /// Long steps: interior maxima close to the running peak are recomputed
     /// from [`Dense`] states (the adaptive stepper).
     Refine,
+    /// Sub-steps longer than the peak sampling step (a step budget
+    /// stretched them): only the states at their ends are recorded, never
+    /// an interpolated value (which could exceed 1).
+    EndsOnly,
 }
 
 /// One accepted step. The interpolation frame (y0, d0, y1, d1) may differ

@@ -57,6 +57,9 @@ impl Peaks {
     /// Record level k's population q.
     #[inline]
     fn value(&mut self, k: usize, q: f64) {
+        // A population never exceeds the norm, 1; rounding over very many
+        // sub-steps may lift a state's by ~1e-7.
+        let q = q.min(1.0);
         if q > self.peaks[k] {
             self.peaks[k] = q;
         }
@@ -116,7 +119,10 @@ impl Peaks {
             };
             if let Some(v) = found {
                 match s.interior {
-                    Interior::Trusted => self.value(k, v),
+                    // A population never exceeds the norm (at most 1); the
+                    // interpolant may, by its error (below PEAK_TOLERANCE).
+                    Interior::Trusted => self.value(k, v.min(1.0)),
+                    Interior::EndsOnly => {}
                     Interior::Refine => {
                         if v >= self.peaks[k] * (1.0 - REFINE_MARGIN) && v > 0.0 {
                             self.candidates.push(k);

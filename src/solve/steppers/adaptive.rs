@@ -540,5 +540,6 @@ pub(crate) fn propagate<E: Equation, O: Observer<E>>(
     Ok(Run {
         steps,
         evaluations: evaluations + sys.evaluations.get(),
+        peaks_at_ends_only: false,
     })
 }

@@ -172,16 +172,34 @@ fn generator_of<E: Equation>(
     }
 }
 
+/// How one segment is cut: first `fine` sub-steps at the peak sampling
+/// step (peaks interpolated), then `coarse` sub-steps of equal length up to
+/// the segment's end (peaks recorded at their ends only).
+#[derive(Debug, Clone, Copy, PartialEq)]
+struct Cut {
+    fine: u64,
+    fine_dt: f64,
+    coarse: u64,
+}
+
+/// Peak sampling steps at the start of every segment that keep their
+/// length when the step budget stretches the rest: several periods of the
+/// fastest oscillation (the sampling step is about 1/170 of a period),
+/// where the first maxima of a constant drive are reached.
+const FINE_START: f64 = 1024.0;
+
 /// Sub-step counts of every stretch: none (one sub-step each) without peaks;
-/// otherwise the peak sampling step, stretched uniformly where the budget
-/// would be exceeded (the final state stays exact).
+/// otherwise the peak sampling step. Where the budget would be exceeded,
+/// each segment keeps its first [`FINE_START`] sampling steps (at most half
+/// the budget in all) and the rest is stretched uniformly; the final state
+/// stays exact. The flag says whether any segment was stretched.
 fn substeps<E: Equation>(
     eq: &mut E,
     plan: &Plan,
     opts: &SolveOptions,
     peaks: bool,
     gen: &mut Generator,
-) -> Result<Vec<u64>, SolveError> {
+) -> Result<(Vec<Cut>, bool), SolveError> {
     let nseg = plan.segments();
     if nseg as u64 > opts.step_budget {
         let span = plan.stops[nseg] - plan.stops[0];
@@ -191,15 +209,20 @@ fn substeps<E: Equation>(
             cause: format!("{nseg} segments between envelope edges and sample times"),
         });
     }
+    let whole = |n: u64, len: f64| Cut {
+        fine: n,
+        fine_dt: len / n as f64,
+        coarse: 0,
+    };
+    let lens: Vec<f64> = plan.stops.windows(2).map(|w| w[1] - w[0]).collect();
     if !peaks {
-        return Ok(vec![1; nseg]);
+        return Ok((lens.iter().map(|&l| whole(1, l)).collect(), false));
     }
     let mut dt_max = Vec::with_capacity(nseg);
     for i in 0..nseg {
         generator_of(eq, plan, i, gen)?;
         dt_max.push(substep_for(&gen.matrix));
     }
-    let lens: Vec<f64> = plan.stops.windows(2).map(|w| w[1] - w[0]).collect();
     // Counted in f64: a segment may ask for more sub-steps than u64 holds
     // (found by fuzzing `vet_small`: a 2e60 s pulse overflowed the sum).
     let count = |stretch: f64| -> f64 {
@@ -215,6 +238,58 @@ fn substeps<E: Equation>(
             .sum()
     };
     let budget = opts.step_budget as f64;
+    if count(1.0) <= budget {
+        let cuts = lens
+            .iter()
+            .zip(&dt_max)
+            .map(|(&len, dt)| {
+                let n = if dt.is_finite() {
+                    ((len / dt).ceil() as u64).max(1)
+                } else {
+                    1
+                };
+                whole(n, len)
+            })
+            .collect();
+        return Ok((cuts, false));
+    }
+    // The fine starts: FINE_START sampling steps each, scaled down to half
+    // the budget in all.
+    let mut fine: Vec<f64> = lens
+        .iter()
+        .zip(&dt_max)
+        .map(|(len, dt)| {
+            if dt.is_finite() {
+                (len / dt).floor().min(FINE_START)
+            } else {
+                0.0
+            }
+        })
+        .collect();
+    let fine_total: f64 = fine.iter().sum();
+    if fine_total > 0.5 * budget {
+        let scale = 0.5 * budget / fine_total;
+        fine.iter_mut().for_each(|f| *f = (*f * scale).floor());
+    }
+    let rest: Vec<f64> = lens
+        .iter()
+        .zip(&dt_max)
+        .zip(&fine)
+        .map(|((len, dt), f)| if *f > 0.0 { len - f * dt } else { *len })
+        .collect();
+    let budget = budget - fine.iter().sum::<f64>();
+    let count = |stretch: f64| -> f64 {
+        rest.iter()
+            .zip(&dt_max)
+            .map(|(len, dt)| {
+                if dt.is_finite() && *len > 0.0 {
+                    (len / (dt * stretch)).ceil().max(1.0)
+                } else {
+                    1.0
+                }
+            })
+            .sum()
+    };
     let mut stretch = 1.0;
     let mut total = count(stretch);
     while total > budget {
@@ -226,17 +301,32 @@ fn substeps<E: Equation>(
         stretch *= 2.0 * total / budget;
         total = count(stretch);
     }
-    Ok(lens
+    let cuts = lens
         .iter()
-        .zip(&dt_max)
-        .map(|(len, dt)| {
-            if dt.is_finite() {
-                ((len / (dt * stretch)).ceil() as u64).max(1)
+        .zip(&rest)
+        .zip(dt_max.iter().zip(&fine))
+        .map(|((&len, &r), (&dt, &f))| {
+            if f == 0.0 || !dt.is_finite() {
+                let n = if dt.is_finite() {
+                    ((len / (dt * stretch)).ceil() as u64).max(1)
+                } else {
+                    1
+                };
+                return whole(n, len);
+            }
+            let coarse = if r > 0.0 {
+                ((r / (dt * stretch)).ceil() as u64).max(1)
             } else {
-                1
+                0
+            };
+            Cut {
+                fine: f as u64,
+                fine_dt: dt,
+                coarse,
             }
         })
-        .collect())
+        .collect();
+    Ok((cuts, true))
 }
 
 /// U and M of the current generator per sub-step length, and how many
@@ -281,6 +371,7 @@ fn sub_step<E: Equation, O: Observer<E>>(
     dt: f64,
     with_lost: bool,
     lost: &mut f64,
+    interior: Interior,
 ) {
     let m = b.c.len();
     let lost0 = *lost;
@@ -324,7 +415,7 @@ fn sub_step<E: Equation, O: Observer<E>>(
         y1: &b.y1,
         d1: &b.d1,
         end: &b.end,
-        interior: Interior::Trusted,
+        interior,
     };
     obs.step(eq, &step, &mut NoDense);
     std::mem::swap(&mut b.c, &mut b.c1);
@@ -352,7 +443,7 @@ pub(crate) fn propagate<E: Equation, O: Observer<E>>(
     let with_lost = dim == 2 * m + 1;
     let mut gen = Generator::zeros(m);
     let mut next = Generator::zeros(m);
-    let nsubs = substeps(eq, plan, opts, peaks, &mut gen)?;
+    let (cuts, stretched) = substeps(eq, plan, opts, peaks, &mut gen)?;
     let zeros = DVector::from_element(m, ZERO);
     let mut b = Buffers {
         c: DVector::from_fn(m, |k, _| Complex64::new(y[2 * k], y[2 * k + 1])),
@@ -375,34 +466,53 @@ pub(crate) fn propagate<E: Equation, O: Observer<E>>(
     }
     let mut steps = 0u64;
     let mut exps = Exponentials::default();
-    for (i, &nsub) in nsubs.iter().enumerate() {
+    for (i, cut) in cuts.iter().enumerate() {
         let (sa, sb) = (plan.stops[i], plan.stops[i + 1]);
         generator_of(eq, plan, i, &mut next)?;
         if i == 0 || next != gen {
             std::mem::swap(&mut gen, &mut next);
             exps.cache.clear();
         }
-        let dt = (sb - sa) / nsub as f64;
-        let idx = exps.index(&gen, dt, sa, sb)?;
-        let (_, u, mm) = &exps.cache[idx];
-        for k in 0..m {
-            b.spin[k] = -gen.matrix[(k, k)].im;
-            b.turn[k] = Complex64::from_polar(1.0, b.spin[k] * dt);
+        let fine_end = if cut.coarse == 0 {
+            sb
+        } else {
+            sa + cut.fine as f64 * cut.fine_dt
+        };
+        let coarse_dt = (sb - fine_end) / cut.coarse.max(1) as f64;
+        let parts = [
+            (
+                cut.fine,
+                (fine_end - sa) / cut.fine.max(1) as f64,
+                Interior::Trusted,
+            ),
+            (cut.coarse, coarse_dt, Interior::EndsOnly),
+        ];
+        for (count, dt, interior) in parts {
+            if count == 0 {
+                continue;
+            }
+            let idx = exps.index(&gen, dt, sa, sb)?;
+            let (_, u, mm) = &exps.cache[idx];
+            for k in 0..m {
+                b.spin[k] = -gen.matrix[(k, k)].im;
+                b.turn[k] = Complex64::from_polar(1.0, b.spin[k] * dt);
+            }
+            gen.matrix.mul_to(&b.c, &mut b.dc);
+            for _ in 0..count {
+                sub_step(
+                    &*eq,
+                    obs,
+                    &mut b,
+                    &gen,
+                    (u, mm.as_ref()),
+                    dt,
+                    with_lost,
+                    &mut lost,
+                    interior,
+                );
+            }
+            steps += count;
         }
-        gen.matrix.mul_to(&b.c, &mut b.dc);
-        for _ in 0..nsub {
-            sub_step(
-                &*eq,
-                obs,
-                &mut b,
-                &gen,
-                (u, mm.as_ref()),
-                dt,
-                with_lost,
-                &mut lost,
-            );
-        }
-        steps += nsub;
         if !b.c.iter().all(|z| z.re.is_finite() && z.im.is_finite()) || !lost.is_finite() {
             return Err(SolveError::NonFinite {
                 stage: format!("exact propagation of the segment {sa:.6e} s to {sb:.6e} s"),
@@ -416,5 +526,6 @@ pub(crate) fn propagate<E: Equation, O: Observer<E>>(
     Ok(Run {
         steps,
         evaluations: exps.taken,
+        peaks_at_ends_only: stretched,
     })
 }

@@ -16,4 +16,8 @@ pub(crate) struct Run {
     pub steps: u64,
     /// Right-hand side evaluations (adaptive) or matrix exponentials (exact).
     pub evaluations: u64,
+    /// Peaks recorded at sub-step ends only (the exact stepper's sub-steps
+    /// were stretched past the peak sampling step by the step budget):
+    /// they are lower bounds.
+    pub peaks_at_ends_only: bool,
 }
