@@ -57,6 +57,7 @@
 //! rectangles a few microseconds, with Gaussians 0.2-0.8 ms.
 
 mod nested;
+mod rate_remedy;
 mod rates;
 mod remedy;
 mod spectrum;
@@ -68,6 +69,7 @@ use crate::model::{Model, Window};
 pub use rates::{
     scattering_rate, DecaySource, DEPLETION_LIMIT, MIN_WIDTH_TIMES_LENGTH, SATURATION_LIMIT,
 };
+pub use rate_remedy::{scatter_remedy, ScatterRemedy};
 pub use remedy::{intensity_fwhm, remedy, LengthRule};
 pub use spectrum::{envelope_spectrum, envelope_spectrum_bound, envelope_spectrum_quadrature};
 use view::FieldView;

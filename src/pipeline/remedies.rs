@@ -22,7 +22,7 @@ use crate::error::Error;
 use crate::estimate;
 use crate::model::Dynamics;
 use crate::model::{Envelope, Model, ModelError};
-use crate::report::{RemedyCheck, RemedyRow, UncheckedRemedy, VetReport};
+use crate::report::{RemedyCheck, RemedyRow, ScatterCheck, UncheckedRemedy, VetReport};
 use crate::solve::{self, SolveOptions};
 
 /// The remedy checks of one report may do this many times the main run's work.
@@ -117,6 +117,7 @@ fn record(rm: &mut RemedyRow, check: RemedyCheck, outcome: Result<f64, String>) 
 /// a check that fails is listed in the remedy's `not_checked` instead.
 pub(super) fn check(model: &Model, rep: &mut VetReport, step_budget: u64) {
     let mut budget = Budget::new(model, rep.solver.steps, step_budget);
+    check_scatter(model, rep, &mut budget);
     for (k, row) in rep.levels.iter_mut().enumerate() {
         let Some(rm) = row.remedy.as_mut() else {
             continue;
@@ -159,6 +160,32 @@ pub(super) fn check(model: &Model, rep: &mut VetReport, step_budget: u64) {
                     budget.final_population(changed, k),
                 );
             }
+        }
+    }
+}
+
+/// The exact checks of the remedies of decay-fed leaks: the field's
+/// intensity times the factor, its pulse length times the factor at the same
+/// peak Rabi frequency, its carrier moved to the detuning for tolerance.
+fn check_scatter(model: &Model, rep: &mut VetReport, budget: &mut Budget) {
+    for (k, row) in rep.levels.iter_mut().enumerate() {
+        let Some(rm) = row.scatter_remedy.as_mut() else {
+            continue;
+        };
+        let Some(f) = model.fields.iter().position(|f| f.id == rm.field) else {
+            continue;
+        };
+        let x = rm.factor_for_tolerance;
+        let dimmer = model.with_field_power(f, x);
+        rm.record(ScatterCheck::Intensity, budget.final_population(dimmer, k));
+        let env = model.fields[f].envelope.stretched(x);
+        let shorter = model
+            .with_field_envelope(f, env, 1.0 / x)
+            .and_then(|m| m.with_field_power(f, x * x));
+        rm.record(ScatterCheck::Length, budget.final_population(shorter, k));
+        if let Some(to) = rm.detuning_for_tolerance {
+            let moved = model.with_field_carrier_shift(f, to - rm.detuning);
+            rm.record(ScatterCheck::Detuning, budget.final_population(moved, k));
         }
     }
 }

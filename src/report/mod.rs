@@ -19,6 +19,7 @@ mod inspect;
 mod json_units;
 mod provenance;
 mod safety;
+mod scatter_remedy;
 #[cfg(test)]
 pub(crate) mod sample;
 mod vet;
@@ -26,6 +27,7 @@ mod vet;
 pub use inspect::{inspect, InspectDrive, InspectField, InspectLevel, InspectReport};
 pub use provenance::{Provenance, SolverFacts};
 pub use safety::{safety_notes, SafetyNote, SAFETY_INTENSITY};
+pub use scatter_remedy::{ScatterCheck, ScatterRemedyRow, UncheckedScatterRemedy};
 pub use vet::{
     judge_targets, vet, Channel, ExcludedRow, LevelRow, RemedyCheck, RemedyRow, SourceRow,
     UncheckedRemedy, VetReport, NEGLIGIBLE, UNRELIABLE_ABOVE, UNRELIABLE_FACTOR,

@@ -8,6 +8,7 @@
 
 use super::json_units;
 use super::safety::{safety_notes, SafetyNote};
+use super::scatter_remedy::ScatterRemedyRow;
 use super::{roles, Provenance, Role, SolverFacts};
 use crate::estimate::{self, Estimate, EstimateError, Order};
 use crate::model::{Dynamics, InitialKind, Model, Readout};
@@ -203,6 +204,9 @@ pub struct LevelRow {
     pub unreliable: bool,
     #[serde(skip_serializing_if = "Option::is_none")]
     pub remedy: Option<RemedyRow>,
+    /// The remedy of a leak fed by spontaneous emission (no key otherwise).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub scatter_remedy: Option<ScatterRemedyRow>,
     /// Population after the window once every decay has run its course
     /// (present whenever a level of the scheme decays).
     #[serde(skip_serializing_if = "Option::is_none")]
@@ -470,6 +474,10 @@ pub fn vet(
         } else {
             None
         };
+        let scatter_remedy = is_flagged
+            .then(|| estimate::scatter_remedy(model, est, tol))
+            .flatten()
+            .map(|r| ScatterRemedyRow::new(model, &r));
         if is_flagged {
             flagged += 1;
         }
@@ -489,6 +497,7 @@ pub fn vet(
             unreliable: role != Role::Initial && (unreliable(shown, fin) || !est.decay_reliable()),
             sources: source_rows(model, est),
             remedy,
+            scatter_remedy,
             settled_population: settled,
             window_end_population: (model.readout() != Readout::WindowEnd).then_some(end),
             scattered_photons: solution.scattered_photons.as_ref().map(|p| p[k]),

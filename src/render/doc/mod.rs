@@ -6,6 +6,7 @@
 //! units). Must not: compute physics (every number comes from the report) or
 //! write anything.
 
+mod scatter_remedy;
 mod vet;
 
 pub use vet::vet_doc;

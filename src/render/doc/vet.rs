@@ -8,6 +8,7 @@ use super::{
     initial_note, method_name, numfmt, order_name, provenance_meta, safety_section, table,
     window_meta, Align, Cell, Doc, Mark, Section, MODEL_TEXT, TWO_PI,
 };
+use super::scatter_remedy::scatter_remedy_text;
 use crate::model::{Dynamics, Readout};
 use crate::report::{Channel, LevelRow, RemedyCheck, RemedyRow, Role, SourceRow, VetReport};
 
@@ -198,6 +199,9 @@ fn leak_sections(r: &VetReport) -> Vec<Section> {
         }
         if let Some(m) = &l.remedy {
             remedies.push(remedy_text(l, m));
+        }
+        if let Some(m) = &l.scatter_remedy {
+            remedies.push(scatter_remedy_text(l, m));
         }
     }
     if !leak_rows.is_empty() {
