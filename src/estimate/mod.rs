@@ -66,10 +66,10 @@ mod view;
 use num_complex::Complex64 as C;
 
 use crate::model::{Model, Window};
+pub use rate_remedy::{scatter_remedy, ScatterRemedy};
 pub use rates::{
     scattering_rate, DecaySource, DEPLETION_LIMIT, MIN_WIDTH_TIMES_LENGTH, SATURATION_LIMIT,
 };
-pub use rate_remedy::{scatter_remedy, ScatterRemedy};
 pub use remedy::{intensity_fwhm, remedy, LengthRule};
 pub use spectrum::{envelope_spectrum, envelope_spectrum_bound, envelope_spectrum_quadrature};
 use view::FieldView;

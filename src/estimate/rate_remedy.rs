@@ -79,8 +79,8 @@ pub fn scatter_remedy(model: &Model, le: &LevelEstimate, tolerance: f64) -> Opti
             .sum::<f64>()
     };
     let sign = if top.detuning < 0.0 { -1.0 } else { 1.0 };
-    let carrier_shift = smallest_shift(|d| after(sign * d) <= tolerance, top.width)
-        .map(|d| sign * d);
+    let carrier_shift =
+        smallest_shift(|d| after(sign * d) <= tolerance, top.width).map(|d| sign * d);
     Some(ScatterRemedy {
         field,
         via: top.via,
@@ -133,8 +133,8 @@ mod tests {
         let g = 2.0e7;
         for x in [2.0, 10.0, 1e4] {
             let want = 0.5 * g * (x - 1.0_f64).sqrt();
-            let got = smallest_shift(|d| g * g / (g * g + 4.0 * d * d) <= 1.0 / x, g)
-                .expect("found");
+            let got =
+                smallest_shift(|d| g * g / (g * g + 4.0 * d * d) <= 1.0 / x, g).expect("found");
             assert!((got / want - 1.0).abs() < 2e-6, "{x}: {got} vs {want}");
         }
         assert_eq!(smallest_shift(|_| false, g), None);
