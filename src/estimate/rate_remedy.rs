@@ -24,7 +24,8 @@
 //! the dominant line, on a logarithmic grid from G/100 to 1e5 G refined by
 //! bisection) at which `P_0 + sum_s p_s (G_s^2 + 4 Delta_s^2) / (G_s^2 + 4
 //! (Delta_s + delta)^2) <= tol`. None when `P_0` alone exceeds the
-//! tolerance (turning F down cannot help) or no decay source is there.
+//! tolerance (turning F down cannot help), no decay source is there, or a
+//! number of the remedy would not be finite.
 
 use super::LevelEstimate;
 use crate::model::Model;
@@ -67,6 +68,11 @@ pub fn scatter_remedy(model: &Model, le: &LevelEstimate, tolerance: f64) -> Opti
         return None;
     }
     let factor = (tolerance - rest) / fed;
+    // Every number the row carries is finite (a remedy is advice: one that
+    // cannot be stated in numbers is left out, never reported as NaN).
+    if !(factor.is_finite() && factor > 0.0 && top.detuning.is_finite()) {
+        return None;
+    }
     let after = |delta: f64| -> f64 {
         rest + ours
             .iter()

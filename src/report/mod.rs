@@ -15,6 +15,7 @@
 //! them from [`vet`] and [`inspect`], it does not build them, so a new field
 //! (a new JSON key) breaks nobody.
 
+mod finite;
 mod inspect;
 mod json_units;
 mod provenance;

@@ -104,6 +104,16 @@ impl ScatterRemedyRow {
         }
     }
 
+    /// Every number of the row, for the report's finiteness check.
+    pub(super) fn numbers(&self) -> impl Iterator<Item = f64> + '_ {
+        [self.detuning, self.fed_by_field, self.factor_for_tolerance]
+            .into_iter()
+            .chain(self.detuning_for_tolerance)
+            .chain(self.exact_at_intensity)
+            .chain(self.exact_at_length)
+            .chain(self.exact_at_detuning)
+    }
+
     /// Record the outcome of one exact check.
     pub fn record(&mut self, check: ScatterCheck, outcome: Result<f64, String>) {
         let slot = match check {
@@ -111,6 +121,13 @@ impl ScatterRemedyRow {
             ScatterCheck::Length => &mut self.exact_at_length,
             ScatterCheck::Detuning => &mut self.exact_at_detuning,
         };
+        let outcome = outcome.and_then(|p| {
+            if p.is_finite() {
+                Ok(p)
+            } else {
+                Err("the changed scheme's population is not finite".to_string())
+            }
+        });
         match outcome {
             Ok(p) => *slot = Some(p),
             Err(reason) => {
