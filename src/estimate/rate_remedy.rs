@@ -131,6 +131,7 @@ fn smallest_shift(ok: impl Fn(f64) -> bool, width: f64) -> Option<f64> {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::estimate::{DecaySource, Order};
 
     // A Lorentzian line G^2 / (G^2 + 4 d^2) falls to 1/x at
     // d = (G/2) sqrt(x - 1) (algebra of the rate formula in `rates`).
@@ -145,5 +146,78 @@ mod tests {
         }
         assert_eq!(smallest_shift(|_| false, g), None);
         assert_eq!(smallest_shift(|_| true, 0.0), None);
+    }
+
+    /// A one-drive model (g -> e, e decaying to g and s) and a hand-made
+    /// estimate of s: `rest` coherent, one decay source of population `fed`
+    /// and line width `width`.
+    fn case(rest: f64, fed: f64, width: f64) -> (Model, LevelEstimate) {
+        let text = r#"
+levels:
+  g: { energy: "0 MHz" }
+  s: { energy: "9200 MHz" }
+  e: { energy: "450000000 MHz", lifetime: "30 ns", decays_to: { g: 0.7, s: 0.2 } }
+initial: g
+couplings:
+  - { between: [g, e], dipole: 1.0 }
+fields:
+  pump:
+    tuned: { to: [g, e], detuning: "-60 MHz" }
+    rabi: { on: [g, e], value: "1 MHz" }
+    envelope: { shape: rectangular, start: "0 us", duration: "5 us" }
+"#;
+        let model = crate::scheme::parse(text, "t.yaml").expect("valid");
+        let source = DecaySource {
+            drive: 0,
+            from: 0,
+            via: 2,
+            detuning: -2.0 * std::f64::consts::PI * 60e6,
+            rabi: 2.0 * std::f64::consts::PI * 1e6,
+            width,
+            rate: 1.0,
+            saturation: 1e-3,
+            scattered: 1.0,
+            population: fed,
+            reliable: true,
+        };
+        let le = LevelEstimate {
+            order: Order::First,
+            first_order: Some(rest + fed),
+            second_order: None,
+            sources: Vec::new(),
+            decay_sources: vec![source],
+        };
+        (model, le)
+    }
+
+    // Arithmetic of the module documentation and its refusals.
+    #[test]
+    fn the_remedy_is_none_where_the_field_cannot_cure_or_a_number_is_bad() {
+        let g = 1.0 / 30e-9;
+        let (m, le) = case(1e-4, 9e-4, g);
+        let r = scatter_remedy(&m, &le, 3e-4).expect("a remedy");
+        assert!((r.factor - 2e-4 / 9e-4).abs() < 1e-15);
+        assert!(
+            r.carrier_shift.is_some_and(|d| d < 0.0),
+            "away from the line"
+        );
+        // Other paths alone above the tolerance: turning the field down cannot help.
+        assert_eq!(scatter_remedy(&m, &case(5e-4, 9e-4, g).1, 3e-4), None);
+        // Within tolerance already, no decay source, or numbers not finite.
+        assert_eq!(scatter_remedy(&m, &le, 2e-3), None);
+        let mut none = le.clone();
+        none.decay_sources.clear();
+        assert_eq!(scatter_remedy(&m, &none, 3e-4), None);
+        assert_eq!(scatter_remedy(&m, &case(1e-4, f64::NAN, g).1, 3e-4), None);
+        assert_eq!(
+            scatter_remedy(&m, &case(1e-4, f64::INFINITY, g).1, 3e-4),
+            None
+        );
+        assert_eq!(scatter_remedy(&m, &le, f64::NAN), None);
+        // A line of no width: the factor stands, no shift is searched.
+        let r = scatter_remedy(&m, &case(1e-4, 9e-4, 0.0).1, 3e-4).expect("a remedy");
+        assert_eq!(r.carrier_shift, None);
+        let r = scatter_remedy(&m, &case(1e-4, 9e-4, f64::NAN).1, 3e-4).expect("a remedy");
+        assert_eq!(r.carrier_shift, None);
     }
 }
