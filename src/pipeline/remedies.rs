@@ -1,6 +1,8 @@
 //! The exact check of each remedy the report proposes: the changed scheme
 //! (Gaussian or Blackman envelope of the same intensity FWHM, or the pulse
-//! lengthened to the estimate's length for tolerance) propagated again.
+//! lengthened to the estimate's length for tolerance; for a decay-fed leak
+//! the field's intensity or pulse length times the factor, or its carrier
+//! moved) propagated again.
 //!
 //! A remedy is advice beside the result, so a check that cannot be run (the
 //! changed scheme exceeds the step budget, is refused by the model's
