@@ -289,4 +289,39 @@ solver: {method: adaptive}
         let b = Budget::new(&m, 10_000_000, 1_000);
         assert_eq!(b.remaining, WORK_FACTOR * 1e7 * 2.0);
     }
+
+    // The checks of a decay-fed leak's remedy share the budget too: with it
+    // spent, each of the three is listed as not checked with the reason,
+    // its population absent (never NaN), and the row keeps its estimate.
+    #[test]
+    fn a_spent_budget_leaves_the_scatter_checks_not_checked() {
+        let text = include_str!("../../level_schemes/lambda_pumping.yaml");
+        let m = crate::parse(text, "lambda_pumping.yaml").expect("the demo");
+        let prov = crate::report::Provenance::new("lambda_pumping.yaml", "0");
+        let mut rep = super::super::vet_model(&m, prov, None).expect("vet");
+        let mut b = Budget::new(&m, rep.solver.steps, 1_000_000);
+        b.remaining = 0.0;
+        check_scatter(&m, &mut rep, &mut b);
+        let row = rep.levels.iter().find(|l| l.id == "g2").expect("g2");
+        let r = row.scatter_remedy.as_ref().expect("g2 leaks by decay");
+        assert!(r.factor_for_tolerance > 0.0 && r.factor_for_tolerance < 1.0);
+        assert_eq!(
+            (r.exact_at_intensity, r.exact_at_length, r.exact_at_detuning),
+            (None, None, None)
+        );
+        let checks: Vec<_> = r.not_checked.iter().map(|u| u.check).collect();
+        assert_eq!(
+            checks,
+            [
+                ScatterCheck::Intensity,
+                ScatterCheck::Length,
+                ScatterCheck::Detuning
+            ]
+        );
+        assert!(r
+            .not_checked
+            .iter()
+            .all(|u| u.reason.contains("shared budget")));
+        assert_eq!(rep.first_non_finite(), None);
+    }
 }
