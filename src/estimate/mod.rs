@@ -57,6 +57,7 @@
 //! rectangles a few microseconds, with Gaussians 0.2-0.8 ms.
 
 mod nested;
+mod rate_remedy;
 mod rates;
 mod remedy;
 mod spectrum;
@@ -65,6 +66,7 @@ mod view;
 use num_complex::Complex64 as C;
 
 use crate::model::{Model, Window};
+pub use rate_remedy::{scatter_remedy, ScatterRemedy};
 pub use rates::{
     scattering_rate, DecaySource, DEPLETION_LIMIT, MIN_WIDTH_TIMES_LENGTH, SATURATION_LIMIT,
 };

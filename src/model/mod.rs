@@ -472,6 +472,31 @@ impl Model {
         m.to_builder().build()
     }
 
+    /// A copy with field `field`'s intensity multiplied by `factor` (> 0):
+    /// every drive of the field gets its Rabi frequency times
+    /// `sqrt(factor)`, the envelope and carrier stay. Used to check the
+    /// remedies of decay-fed leaks (less power) by exact propagation.
+    pub fn with_field_power(&self, field: usize, factor: f64) -> Result<Model, ModelError> {
+        let mut m = self.clone();
+        let amp = factor.sqrt();
+        if let Some(i) = m.fields[field].peak_intensity.as_mut() {
+            *i *= factor;
+        }
+        for d in m.drives.iter_mut().filter(|d| d.field == field) {
+            d.rabi *= amp;
+        }
+        m.to_builder().build()
+    }
+
+    /// A copy with field `field`'s carrier moved by `shift` (rad/s), so every
+    /// drive of the field has its detuning changed by `shift`. Used to check
+    /// the remedies of decay-fed leaks (further from the line) exactly.
+    pub fn with_field_carrier_shift(&self, field: usize, shift: f64) -> Result<Model, ModelError> {
+        let mut m = self.clone();
+        m.fields[field].omega += shift;
+        m.to_builder().build()
+    }
+
     /// Index of a level by id.
     pub fn level_index(&self, id: &str) -> Option<usize> {
         self.levels.iter().position(|l| l.id == id)

@@ -1,6 +1,8 @@
 //! The exact check of each remedy the report proposes: the changed scheme
 //! (Gaussian or Blackman envelope of the same intensity FWHM, or the pulse
-//! lengthened to the estimate's length for tolerance) propagated again.
+//! lengthened to the estimate's length for tolerance; for a decay-fed leak
+//! the field's intensity or pulse length times the factor, or its carrier
+//! moved) propagated again.
 //!
 //! A remedy is advice beside the result, so a check that cannot be run (the
 //! changed scheme exceeds the step budget, is refused by the model's
@@ -22,7 +24,7 @@ use crate::error::Error;
 use crate::estimate;
 use crate::model::Dynamics;
 use crate::model::{Envelope, Model, ModelError};
-use crate::report::{RemedyCheck, RemedyRow, UncheckedRemedy, VetReport};
+use crate::report::{RemedyCheck, RemedyRow, ScatterCheck, UncheckedRemedy, VetReport};
 use crate::solve::{self, SolveOptions};
 
 /// The remedy checks of one report may do this many times the main run's work.
@@ -117,6 +119,7 @@ fn record(rm: &mut RemedyRow, check: RemedyCheck, outcome: Result<f64, String>) 
 /// a check that fails is listed in the remedy's `not_checked` instead.
 pub(super) fn check(model: &Model, rep: &mut VetReport, step_budget: u64) {
     let mut budget = Budget::new(model, rep.solver.steps, step_budget);
+    check_scatter(model, rep, &mut budget);
     for (k, row) in rep.levels.iter_mut().enumerate() {
         let Some(rm) = row.remedy.as_mut() else {
             continue;
@@ -159,6 +162,32 @@ pub(super) fn check(model: &Model, rep: &mut VetReport, step_budget: u64) {
                     budget.final_population(changed, k),
                 );
             }
+        }
+    }
+}
+
+/// The exact checks of the remedies of decay-fed leaks: the field's
+/// intensity times the factor, its pulse length times the factor at the same
+/// peak Rabi frequency, its carrier moved to the detuning for tolerance.
+fn check_scatter(model: &Model, rep: &mut VetReport, budget: &mut Budget) {
+    for (k, row) in rep.levels.iter_mut().enumerate() {
+        let Some(rm) = row.scatter_remedy.as_mut() else {
+            continue;
+        };
+        let Some(f) = model.fields.iter().position(|f| f.id == rm.field) else {
+            continue;
+        };
+        let x = rm.factor_for_tolerance;
+        let dimmer = model.with_field_power(f, x);
+        rm.record(ScatterCheck::Intensity, budget.final_population(dimmer, k));
+        let env = model.fields[f].envelope.stretched(x);
+        let shorter = model
+            .with_field_envelope(f, env, 1.0 / x)
+            .and_then(|m| m.with_field_power(f, x * x));
+        rm.record(ScatterCheck::Length, budget.final_population(shorter, k));
+        if let Some(to) = rm.detuning_for_tolerance {
+            let moved = model.with_field_carrier_shift(f, to - rm.detuning);
+            rm.record(ScatterCheck::Detuning, budget.final_population(moved, k));
         }
     }
 }
@@ -259,5 +288,40 @@ solver: {method: adaptive}
         assert_eq!(b.remaining, WORK_FLOOR);
         let b = Budget::new(&m, 10_000_000, 1_000);
         assert_eq!(b.remaining, WORK_FACTOR * 1e7 * 2.0);
+    }
+
+    // The checks of a decay-fed leak's remedy share the budget too: with it
+    // spent, each of the three is listed as not checked with the reason,
+    // its population absent (never NaN), and the row keeps its estimate.
+    #[test]
+    fn a_spent_budget_leaves_the_scatter_checks_not_checked() {
+        let text = include_str!("../../level_schemes/lambda_pumping.yaml");
+        let m = crate::parse(text, "lambda_pumping.yaml").expect("the demo");
+        let prov = crate::report::Provenance::new("lambda_pumping.yaml", "0");
+        let mut rep = super::super::vet_model(&m, prov, None).expect("vet");
+        let mut b = Budget::new(&m, rep.solver.steps, 1_000_000);
+        b.remaining = 0.0;
+        check_scatter(&m, &mut rep, &mut b);
+        let row = rep.levels.iter().find(|l| l.id == "g2").expect("g2");
+        let r = row.scatter_remedy.as_ref().expect("g2 leaks by decay");
+        assert!(r.factor_for_tolerance > 0.0 && r.factor_for_tolerance < 1.0);
+        assert_eq!(
+            (r.exact_at_intensity, r.exact_at_length, r.exact_at_detuning),
+            (None, None, None)
+        );
+        let checks: Vec<_> = r.not_checked.iter().map(|u| u.check).collect();
+        assert_eq!(
+            checks,
+            [
+                ScatterCheck::Intensity,
+                ScatterCheck::Length,
+                ScatterCheck::Detuning
+            ]
+        );
+        assert!(r
+            .not_checked
+            .iter()
+            .all(|u| u.reason.contains("shared budget")));
+        assert_eq!(rep.first_non_finite(), None);
     }
 }

@@ -157,7 +157,11 @@ mod tests {
             lines[5],
             "s,spectator,2e-3,3e-3,1.5e-3,second,1.3333333333333333e0,1e-3,true,false,\"probe, \"\"A\"\"\",e,1.5e2,5e0,1.5e-3"
         );
-        assert_eq!(lines.len(), 6);
+        assert_eq!(
+            lines[6],
+            "d,spectator,1.8e-3,1.9e-3,1.6e-3,first,1.125e0,1e-3,true,false,\"probe, \"\"A\"\"\",g,-2e1,5e0,1.6e-3"
+        );
+        assert_eq!(lines.len(), 7);
     }
 
     #[test]
@@ -167,7 +171,7 @@ mod tests {
             .comment(Some(b'#'))
             .from_reader(t.as_bytes());
         let rows: Vec<csv::StringRecord> = r.records().map(Result::unwrap).collect();
-        assert_eq!(rows.len(), 3);
+        assert_eq!(rows.len(), 4);
         assert!(rows.iter().all(|row| row.len() == 15));
         assert_eq!(&rows[1][10], "probe, \"A\"");
         assert_eq!(rows[1][12].parse::<f64>().unwrap(), -20.0);

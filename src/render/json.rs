@@ -134,6 +134,41 @@ mod tests {
             ]
         );
         assert_eq!(s["remedy"]["exact_blackman_population"], Value::Null);
+        assert!(s.get("scatter_remedy").is_none(), "no key without one");
+    }
+
+    #[test]
+    fn a_decay_fed_leak_has_its_remedy_keys_with_units_in_their_names() {
+        let (_, v) = json(&sample::vet_report());
+        let d = &v["levels"][3];
+        assert_eq!(d["sources"][0]["channel"], "decay");
+        let m = &d["scatter_remedy"];
+        assert_eq!(
+            keys(m),
+            [
+                "field",
+                "from",
+                "via",
+                "detuning_mhz",
+                "fed_by_field_population",
+                "factor_for_tolerance",
+                "detuning_for_tolerance_mhz",
+                "exact_population_at_intensity",
+                "exact_population_at_length",
+                "exact_population_at_detuning",
+            ],
+            "not_checked only when a check failed"
+        );
+        assert_eq!(
+            (m["from"].as_str(), m["via"].as_str()),
+            (Some("g"), Some("e"))
+        );
+        let mhz = |k: &str| m[k].as_f64().unwrap();
+        assert!((mhz("detuning_mhz") + 20.0).abs() < 1e-12);
+        assert!((mhz("detuning_for_tolerance_mhz") + 26.5).abs() < 1e-12);
+        assert_eq!(m["factor_for_tolerance"], 0.625);
+        assert_eq!(m["exact_population_at_intensity"], 9.5e-4);
+        assert_eq!(m["exact_population_at_detuning"], Value::Null);
     }
 
     #[test]

@@ -170,6 +170,41 @@ mod tests {
                 .unwrap();
             String::from_utf8(b).unwrap()
         };
-        assert!(!plain.contains("not checked"), "only where a check failed");
+        assert!(
+            !plain.contains("(not checked: "),
+            "only where a check failed"
+        );
+    }
+
+    #[test]
+    fn a_decay_fed_leak_has_its_remedy_sentence_in_every_readable_format() {
+        let mut r = sample::vet_report();
+        let m = r.levels[3].scatter_remedy.as_mut().expect("d has one");
+        m.record(
+            crate::report::ScatterCheck::Detuning,
+            Err("refused: rabi_hz must be finite".into()),
+        );
+        let render = |format| {
+            let mut b = Vec::new();
+            exporter(format, false).vet(&r, &mut b).unwrap();
+            String::from_utf8(b).unwrap()
+        };
+        let tail = "gives 0.0010 (not checked: refused: rabi_hz must be finite). \
+                    A repumper on d is the other cure (not checked).";
+        let text = render(Format::Text);
+        assert!(
+            text.contains("  d: fed by decay of e after field probe, \"A\" excites it from g"),
+            "{text}"
+        );
+        assert!(text.contains(tail), "{text}");
+        assert!(render(Format::Markdown).contains(tail));
+        let latex = render(Format::Latex);
+        assert!(
+            latex.contains("gives 0.0010 (not checked: refused: rabi\\_hz must be finite)."),
+            "{latex}"
+        );
+        for (f, t) in [("text", &text), ("latex", &latex)] {
+            assert!(!t.contains("NaN"), "{f}");
+        }
     }
 }

@@ -110,9 +110,12 @@ mod tests {
                 "  s      spectator  0.0020  0.0030    0.0015  2nd         1.33     0.0010  LEAK",
             ]
         );
-        assert!(
-            lines.contains(&"  s      probe, \"A\"  e     +150.0 MHz   5.000 MHz    0.0015  yes")
-        );
+        assert!(lines.contains(
+            &"  s      probe, \"A\"  e                  +150.0 MHz   5.000 MHz    0.0015  yes"
+        ));
+        assert!(lines.contains(
+            &"  d      probe, \"A\"  g, via e by decay  -20.00 MHz   5.000 MHz    0.0016  yes"
+        ));
         assert!(!t.contains('\x1b'), "no escape codes without colour");
     }
 

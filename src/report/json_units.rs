@@ -30,6 +30,11 @@ impl Serialize for Mhz {
     }
 }
 
+/// rad/s written as MHz; None as null.
+pub(super) fn mhz_opt<S: Serializer>(omega: &Option<f64>, s: S) -> Result<S::Ok, S::Error> {
+    omega.map(|w| w / TWO_PI / 1e6).serialize(s)
+}
+
 /// A cyclic frequency in Hz written as MHz.
 pub(super) fn hz_as_mhz<S: Serializer>(hz: &f64, s: S) -> Result<S::Ok, S::Error> {
     s.serialize_f64(*hz / 1e6)

@@ -15,12 +15,14 @@
 //! them from [`vet`] and [`inspect`], it does not build them, so a new field
 //! (a new JSON key) breaks nobody.
 
+mod finite;
 mod inspect;
 mod json_units;
 mod provenance;
 mod safety;
 #[cfg(test)]
 pub(crate) mod sample;
+mod scatter_remedy;
 mod vet;
 
 pub use inspect::{
@@ -28,6 +30,7 @@ pub use inspect::{
 };
 pub use provenance::{Provenance, SolverFacts};
 pub use safety::{safety_notes, SafetyNote, SAFETY_INTENSITY};
+pub use scatter_remedy::{ScatterCheck, ScatterRemedyRow, UncheckedScatterRemedy};
 pub use vet::{
     judge_targets, vet, Channel, ExcludedRow, LevelRow, RemedyCheck, RemedyRow, SourceRow,
     UncheckedRemedy, VetReport, NEGLIGIBLE, UNRELIABLE_ABOVE, UNRELIABLE_FACTOR,

@@ -3,7 +3,7 @@
 //! Owns: [`vet_report`] and [`inspect_report`], hand-made reports with one of
 //! everything a renderer spells: a title with LaTeX specials, an initial
 //! level, a target, a flagged second-order spectator with its source and a
-//! remedy, a left-out drive, a known and an unknown field intensity, a field
+//! remedy, a spectator fed by decay with the remedy of that leak, a left-out drive, a known and an unknown field intensity, a field
 //! id with a comma and a quote (an id the scheme would refuse, to test CSV
 //! quoting). Must not: claim physics; the
 //! numbers are invented and only need to be distinct and finite.
@@ -29,8 +29,27 @@ fn source(field: &str, from: &str, detuning_mhz: f64, order: Order, population: 
     }
 }
 
-/// A vet report with three levels (g initial, e target, s a leaking
-/// spectator reached at second order).
+/// The remedy of `d`'s decay-fed leak in [`vet_report`]: intensity and
+/// length checked, the carrier shift found but its check not run.
+fn scatter_remedy_row() -> ScatterRemedyRow {
+    ScatterRemedyRow {
+        field: "probe, \"A\"".into(),
+        from: "g".into(),
+        via: "e".into(),
+        detuning: TWO_PI * -20e6,
+        fed_by_field: 1.6e-3,
+        factor_for_tolerance: 0.625,
+        detuning_for_tolerance: Some(TWO_PI * -26.5e6),
+        exact_at_intensity: Some(9.5e-4),
+        exact_at_length: Some(1.3e-3),
+        exact_at_detuning: None,
+        not_checked: Vec::new(),
+    }
+}
+
+/// A vet report with four levels (g initial, e target, s a leaking
+/// spectator reached at second order, d a leaking spectator fed by decay
+/// of e, with the remedy of that leak).
 pub(crate) fn vet_report() -> VetReport {
     let g = LevelRow {
         id: "g".into(),
@@ -49,6 +68,7 @@ pub(crate) fn vet_report() -> VetReport {
         tolerance: 1e-3,
         unreliable: false,
         remedy: None,
+        scatter_remedy: None,
         settled_population: None,
         window_end_population: None,
         scattered_photons: None,
@@ -94,12 +114,31 @@ pub(crate) fn vet_report() -> VetReport {
         }),
         ..g.clone()
     };
+    let d = LevelRow {
+        id: "d".into(),
+        role: Role::Spectator,
+        final_population: 1.8e-3,
+        peak_population: 1.9e-3,
+        first_order: Some(1.6e-3),
+        flagged: true,
+        sources: vec![SourceRow {
+            channel: Channel::Decay,
+            via: Some("e".into()),
+            saturation: Some(0.02),
+            ..source("probe, \"A\"", "g", -20.0, Order::First, 1.6e-3)
+        }],
+        label: None,
+        order: Order::First,
+        ratio: Some(1.8e-3 / 1.6e-3),
+        scatter_remedy: Some(scatter_remedy_row()),
+        ..g.clone()
+    };
     VetReport {
         tolerance: 1e-3,
         norm_error: 1e-15,
         lost_population: 0.05,
-        levels: vec![g, e, s],
-        flagged: 1,
+        levels: vec![g, e, s, d],
+        flagged: 2,
         goal: None,
         targets_short: 0,
         max_spectator: 2e-3,

@@ -8,6 +8,7 @@
 
 use super::json_units;
 use super::safety::{safety_notes, SafetyNote};
+use super::scatter_remedy::ScatterRemedyRow;
 use super::{roles, Provenance, QuantumNumbers, Role, SolverFacts};
 use crate::estimate::{self, Estimate, EstimateError, Order};
 use crate::model::{Dynamics, InitialKind, Model, Readout};
@@ -206,6 +207,9 @@ pub struct LevelRow {
     pub unreliable: bool,
     #[serde(skip_serializing_if = "Option::is_none")]
     pub remedy: Option<RemedyRow>,
+    /// The remedy of a leak fed by spontaneous emission (no key otherwise).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub scatter_remedy: Option<ScatterRemedyRow>,
     /// Population after the window once every decay has run its course
     /// (present whenever a level of the scheme decays).
     #[serde(skip_serializing_if = "Option::is_none")]
@@ -308,54 +312,6 @@ pub struct VetReport {
     /// whose `scattered_photons` is the density-matrix value.
     #[serde(skip)]
     pub emitted: Option<f64>,
-}
-
-impl VetReport {
-    /// The first non-finite number in the report, named by where it sits.
-    pub fn first_non_finite(&self) -> Option<String> {
-        let top = [
-            ("lost population", self.lost_population),
-            ("norm error", self.norm_error),
-            ("scattered photons", self.scattered_photons.unwrap_or(0.0)),
-            ("emitted photons", self.emitted.unwrap_or(0.0)),
-        ];
-        if let Some((name, _)) = top.iter().find(|(_, v)| !v.is_finite()) {
-            return Some(name.to_string());
-        }
-        for l in &self.levels {
-            let mut vals = vec![l.final_population, l.peak_population];
-            vals.extend(l.settled_population);
-            vals.extend(l.window_end_population);
-            vals.extend(l.scattered_photons);
-            vals.extend(l.first_order);
-            vals.extend(l.second_order);
-            vals.extend(l.ratio);
-            vals.extend(
-                l.sources
-                    .iter()
-                    .flat_map(|s| [s.detuning, s.rabi, s.population]),
-            );
-            vals.extend(l.sources.iter().filter_map(|s| s.saturation));
-            if let Some(r) = &l.remedy {
-                vals.extend([r.gaussian_same_area, r.blackman_same_area, r.present_length]);
-                vals.extend(r.length_for_tolerance);
-                vals.extend(r.exact_gaussian);
-                vals.extend(r.exact_blackman);
-                vals.extend(r.exact_at_length);
-            }
-            if vals.iter().any(|v| !v.is_finite()) {
-                return Some(format!("the report row of level {}", l.id));
-            }
-        }
-        self.excluded
-            .iter()
-            .find(|x| {
-                ![x.detuning, x.rabi, x.population, x.light_shift]
-                    .iter()
-                    .all(|v| v.is_finite())
-            })
-            .map(|x| format!("the left-out drive {} on {}-{}", x.field, x.lower, x.upper))
-    }
 }
 
 /// The drive sources, then the decay sources, together largest first (a
@@ -473,6 +429,10 @@ pub fn vet(
         } else {
             None
         };
+        let scatter_remedy = is_flagged
+            .then(|| estimate::scatter_remedy(model, est, tol))
+            .flatten()
+            .map(|r| ScatterRemedyRow::new(model, &r));
         if is_flagged {
             flagged += 1;
         }
@@ -493,6 +453,7 @@ pub fn vet(
             unreliable: role != Role::Initial && (unreliable(shown, fin) || !est.decay_reliable()),
             sources: source_rows(model, est),
             remedy,
+            scatter_remedy,
             settled_population: settled,
             window_end_population: (model.readout() != Readout::WindowEnd).then_some(end),
             scattered_photons: solution.scattered_photons.as_ref().map(|p| p[k]),

@@ -78,6 +78,10 @@ const NOT_PHYSICS: &[(&str, &str)] = &[
         "argument checks",
     ),
     (
+        "src/estimate/rate_remedy.rs::the_remedy_is_none_where_the_field_cannot_cure_or_a_number_is_bad",
+        "error paths and refusals of the decay-fed remedy",
+    ),
+    (
         "tests/physics/demo_schemes.rs::every_demo_parses_and_is_labelled_illustrative",
         "labels and safety notes of the demo files",
     ),

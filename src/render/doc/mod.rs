@@ -9,6 +9,7 @@
 
 mod groups;
 mod inspect;
+mod scatter_remedy;
 mod vet;
 
 pub use groups::Sublevels;

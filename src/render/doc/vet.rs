@@ -6,6 +6,7 @@
 //! compute (every number comes from the report) or pick a format.
 
 use super::groups::{self, Group, Sublevels};
+use super::scatter_remedy::scatter_remedy_text;
 use super::{
     initial_note, largest_cell, method_name, model_text, numfmt, order_name, provenance_meta,
     safety_section, table, window_meta, Align, Cell, Doc, Mark, Section, TWO_PI,
@@ -296,6 +297,9 @@ fn leak_sections(r: &VetReport) -> Vec<Section> {
         }
         if let Some(m) = &l.remedy {
             remedies.push(remedy_text(l, m));
+        }
+        if let Some(m) = &l.scatter_remedy {
+            remedies.push(scatter_remedy_text(l, m));
         }
     }
     if !leak_rows.is_empty() {
