@@ -19,7 +19,12 @@ const DEFAULT_SCHEME: &str = "level_schemes/hyperfine_manifold.yaml";
 const DEFAULT_VARY: &str = "fields.probe.tuned.detuning=-50MHz..50MHz:1001";
 
 /// The CSV body of the scan (rows in grid order).
-fn scan(study: &Study, grid: &Grid, n_levels: usize, pool: &rayon::ThreadPool) -> String {
+fn scan(
+    study: &Study,
+    grid: &Grid,
+    (n_levels, open): (usize, bool),
+    pool: &rayon::ThreadPool,
+) -> String {
     let mut out = String::new();
     let eval = |i: usize| {
         let coords = grid.point(i);
@@ -27,7 +32,7 @@ fn scan(study: &Study, grid: &Grid, n_levels: usize, pool: &rayon::ThreadPool) -
         Ok(row_from_report(&coords, &rep))
     };
     let sink = |_, row| {
-        out.push_str(&fmt::row(&row));
+        out.push_str(&fmt::row(&row, open));
         Ok(())
     };
     if let Err(e) = run_ordered(pool, 0..grid.len(), eval, sink) {
@@ -49,14 +54,15 @@ fn bench_scan(c: &mut Criterion) {
     );
     let specs = parse_specs(&[vary], true, false).expect("a valid --vary");
     let grid = Grid::new(study.axes(&specs, false, 1).expect("axes"), false).expect("grid");
-    let n_levels = study.preflight(&grid).expect("preflight").levels().len();
+    let (model, open) = study.preflight_open(&grid).expect("preflight");
+    let n_levels = model.levels().len();
     let mut group = c.benchmark_group("scan_1001_points");
     group.sample_size(10);
     group.measurement_time(Duration::from_secs(30));
     for jobs in [1usize, 2] {
         let pool = thread_pool(Some(jobs)).expect("threads");
         group.bench_function(format!("jobs_{jobs}"), |b| {
-            b.iter(|| scan(&study, &grid, n_levels, &pool))
+            b.iter(|| scan(&study, &grid, (n_levels, open), &pool))
         });
     }
     group.finish();

@@ -357,6 +357,9 @@ pub fn relative_strength_ff(two_j: i32, two_jp: i32, two_i: i32, two_f: i32, two
         .map_or(f64::NAN, |r| signed_sqrt::ratio_to_f64(&r))
 }
 
+// Same signature and f64 twin as `relative_strength_ff`: both are one call of
+// `strength_exact` with the columns in another order; a shared wrapper would
+// hide which 6j prefactor each one is.
 /// The fraction of spontaneous decays from the upper hyperfine level F' (of
 /// the fine-structure level J') that end in the lower level F (of J):
 /// `(2F + 1)(2J' + 1) {J J' 1; F' F I}^2`, exactly (arguments doubled, in the

@@ -13,4 +13,6 @@
 
 pub mod angular;
 pub mod dipole;
+#[cfg(test)]
+mod rb87;
 pub mod structure;

@@ -112,7 +112,7 @@ pub fn open_partial(
         if !line.starts_with(&fmt::coords_prefix(&plan.grid.point(index))) {
             return Err(damaged(format!("row {} is not grid point {index}", j + 1)));
         }
-        let row = fmt::parse_row(line, n_axes, plan.n_levels)
+        let row = fmt::parse_row(line, n_axes, plan.n_levels, plan.open)
             .map_err(|m| damaged(format!("row {}: {m}", j + 1)))?;
         if keep {
             kept.push(row);

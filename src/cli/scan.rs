@@ -49,6 +49,9 @@ pub struct Plan {
     pub range: Range<usize>,
     pub head: String,
     pub n_levels: usize,
+    /// The head names the open-system columns (`lost`,
+    /// `scattered_photons`): every row ends in them.
+    pub open: bool,
 }
 
 fn progress_bar(show: bool, len: usize, done: usize) -> indicatif::ProgressBar {
@@ -93,7 +96,8 @@ pub fn run_plan(
             let bar = progress_bar(progress, plan.range.len(), 0);
             let mut kept = Vec::new();
             grid::run_ordered(pool, plan.range.clone(), evaluate, |_, row| {
-                w.write_all(fmt::row(&row).as_bytes()).map_err(werr)?;
+                w.write_all(fmt::row(&row, plan.open).as_bytes())
+                    .map_err(werr)?;
                 bar.inc(1);
                 if keep {
                     kept.push(row);
@@ -111,7 +115,8 @@ pub fn run_plan(
             let mut w = BufWriter::new(file);
             let bar = progress_bar(progress, plan.range.len(), start - plan.range.start);
             grid::run_ordered(pool, start..plan.range.end, evaluate, |_, row| {
-                w.write_all(fmt::row(&row).as_bytes()).map_err(&err)?;
+                w.write_all(fmt::row(&row, plan.open).as_bytes())
+                    .map_err(&err)?;
                 // Each finished row reaches the file, so a kill loses at
                 // most the points still running.
                 w.flush().map_err(&err)?;
@@ -165,7 +170,7 @@ pub fn scan(a: ScanArgs) -> Result<i32, Error> {
     let s = read_study(&a.scheme.scheme)?.with_step_budget(a.step_budget.step_budget);
     let axes = s.axes(&specs, a.log, 1)?;
     let grid = Grid::new(axes, a.force)?;
-    let model = s.preflight(&grid)?;
+    let (model, open) = s.preflight_open(&grid)?;
     let prov = s.provenance();
     let level_ids: Vec<String> = model.levels().iter().map(|l| l.id.clone()).collect();
     let n_levels = level_ids.len();
@@ -179,6 +184,7 @@ pub fn scan(a: ScanArgs) -> Result<i32, Error> {
         hash: &hash,
         shard,
         level_ids: &level_ids,
+        open,
     });
     let range = shard.map_or(0..grid.len(), |sh| sh.range(grid.len()));
     let plan = Plan {
@@ -186,10 +192,13 @@ pub fn scan(a: ScanArgs) -> Result<i32, Error> {
         range,
         head,
         n_levels,
+        open,
     };
     let eval = |coords: &[f64]| -> Result<ScanRow, Error> {
         let rep = s.vet_point(&plan.grid, tolerance, n_levels, coords)?;
-        Ok(row_from_report(coords, &rep))
+        // The rows kept for the plot are those the file holds, whether
+        // computed now or read back by --resume.
+        Ok(row_from_report(coords, &rep).as_written(plan.open))
     };
     let rows = run_plan(
         &plan,

@@ -18,6 +18,8 @@ fn fake(coords: &[f64]) -> Result<ScanRow, Error> {
         max_spectator: pe / 3.0,
         flagged: usize::from(pe > 0.5),
         estimates: vec![None, Some(x * x)],
+        lost: Some(pe / 10.0),
+        scattered_photons: Some(x.abs() / 7.0),
     })
 }
 
@@ -33,6 +35,11 @@ fn axis(path: &str, start: f64, end: f64, count: usize) -> Axis {
 }
 
 fn plan(shard: Option<Shard>) -> Plan {
+    plan_of(shard, false)
+}
+
+/// The plan of the 7 x 5 fake scan; `open`: with the open-system columns.
+fn plan_of(shard: Option<Shard>, open: bool) -> Plan {
     let grid = Grid::new(
         vec![axis("a.x", -2.0, 2.0, 7), axis("a.y", 0.0, 1.0, 5)],
         false,
@@ -50,6 +57,7 @@ fn plan(shard: Option<Shard>) -> Plan {
         hash: &hash,
         shard,
         level_ids: &ids,
+        open,
     });
     let range = shard.map_or(0..grid.len(), |s| s.range(grid.len()));
     Plan {
@@ -57,6 +65,7 @@ fn plan(shard: Option<Shard>) -> Plan {
         range,
         head,
         n_levels: 2,
+        open,
     }
 }
 
@@ -167,9 +176,48 @@ fn merge_refuses_parts_of_different_scans_and_cut_parts() {
 
 #[test]
 fn resume_after_a_cut_equals_an_uninterrupted_run() {
-    let d = TempDir::new("resume");
+    resume_after_a_cut(false);
+}
+
+#[test]
+fn resume_and_merge_read_the_open_columns_back() {
+    resume_after_a_cut(true);
+    let d = TempDir::new("open-merge");
     let whole = d.0.join("whole.csv");
-    let p = plan(None);
+    run(&plan_of(None, true), 2, &whole, false).unwrap();
+    let full = fs::read_to_string(&whole).unwrap();
+    assert!(full.contains(",est(g),est(e),lost,scattered_photons\n"));
+    let mut names = Vec::new();
+    let mut texts = Vec::new();
+    for k in 1..=3 {
+        let part = d.0.join(format!("part_{k}.csv"));
+        run(&plan_of(Some(Shard { k, n: 3 }), true), 1, &part, false).unwrap();
+        texts.push(fs::read_to_string(&part).unwrap());
+        names.push(part);
+    }
+    assert_eq!(merge_texts(&names, &texts).unwrap(), full.as_bytes());
+    // The merged file plots (its head says the rows end in the two columns).
+    let svg = plot_scan_text(&full, false).unwrap().unwrap();
+    assert!(svg.matches("<rect").count() >= 35 + 100);
+    // A closed part does not join open ones.
+    let closed = d.0.join("closed.csv");
+    run(
+        &plan_of(Some(Shard { k: 3, n: 3 }), false),
+        1,
+        &closed,
+        false,
+    )
+    .unwrap();
+    texts[2] = fs::read_to_string(&closed).unwrap();
+    let e = merge_texts(&names, &texts).unwrap_err();
+    assert!(e.to_string().contains("differ in their head"), "{e}");
+}
+
+/// Cut a finished scan after 11 and a half rows, resume it, and compare.
+fn resume_after_a_cut(open: bool) {
+    let d = TempDir::new(if open { "resume-open" } else { "resume" });
+    let whole = d.0.join("whole.csv");
+    let p = plan_of(None, open);
     let all_rows = run(&p, 2, &whole, false).unwrap();
     let full = fs::read_to_string(&whole).unwrap();
     // Simulate a kill: the partial file holds the head, 11 rows and half
@@ -193,7 +241,9 @@ fn resume_after_a_cut_equals_an_uninterrupted_run() {
     // the rows returned (for a plot) include those read back.
     let rows = run(&p, 3, &out, true).unwrap();
     assert_eq!(fs::read_to_string(&out).unwrap(), full);
-    assert_eq!(rows, all_rows);
+    let written =
+        |r: Vec<ScanRow>| -> Vec<ScanRow> { r.into_iter().map(|x| x.as_written(open)).collect() };
+    assert_eq!(written(rows), written(all_rows));
     assert!(!partial.exists());
 }
 

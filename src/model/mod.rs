@@ -354,6 +354,18 @@ impl Model {
                 .any(|l| !l.decays_to.is_empty() || l.dephasing > 0.0)
             || self.fields.iter().any(|f| f.linewidth > 0.0)
     }
+    /// Whether the scheme uses any key of the open-system contract: an open
+    /// key ([`Model::has_open_keys`]), `initial: {superposition: ...}`, a
+    /// `readout` other than the window end, or `dynamics: density_matrix`.
+    /// Outputs add their open-system columns (lost population, scattered
+    /// photons) exactly then, so that a version-1 scheme's outputs keep
+    /// their bytes.
+    pub fn uses_open_system(&self) -> bool {
+        self.has_open_keys()
+            || self.initial_kind == InitialKind::Superposition
+            || self.readout != Readout::WindowEnd
+            || self.solver.dynamics == Dynamics::DensityMatrix
+    }
     /// The equation that runs: `solver.dynamics`, with `auto` resolved.
     pub fn dynamics(&self) -> Dynamics {
         match self.solver.dynamics {
@@ -444,10 +456,11 @@ impl Model {
     }
 }
 
-/// Level and field ids: one or more of letters, digits, `_`, `'`, `+`, `-`.
+/// Level and field ids: one or more of letters, digits, `_`, `'`, `+`,
+/// `-`, `/` (the slash spells half-integers in generated ids: `P_F3/2_m+1/2`).
 pub fn valid_id(id: &str) -> bool {
     !id.is_empty()
         && id
             .chars()
-            .all(|c| c.is_ascii_alphanumeric() || matches!(c, '_' | '\'' | '+' | '-'))
+            .all(|c| c.is_ascii_alphanumeric() || matches!(c, '_' | '\'' | '+' | '-' | '/'))
 }

@@ -27,6 +27,11 @@ pub const MAX_PLOT_POINTS: usize = 1_000_000;
 pub struct Evolution {
     /// (absolute scheme time in s, population of every level in model order).
     pub samples: Vec<(f64, Vec<f64>)>,
+    /// Per sample, for a scheme that uses the open-system keys
+    /// ([`Model::uses_open_system`]; None otherwise): the population lost
+    /// from the scheme so far and the photons per atom scattered from the
+    /// window start up to the sample, all levels (cumulative).
+    pub open: Option<Vec<(f64, f64)>>,
     pub method: MethodUsed,
     pub rtol: f64,
     pub atol: f64,
@@ -73,7 +78,9 @@ pub fn check_samples(samples: usize, n_levels: usize, plot: bool) -> Result<(), 
 }
 
 /// Propagate the model and record `samples` evenly spaced samples of the
-/// populations over its window, both ends included.
+/// populations over its window, both ends included (and, for a scheme that
+/// uses the open-system keys, the lost population and the cumulative
+/// scattered photons at each).
 pub fn evolve(model: &Model, samples: usize) -> Result<Evolution, Error> {
     evolve_with_budget(model, samples, DEFAULT_STEP_BUDGET)
 }
@@ -104,8 +111,28 @@ pub fn evolve_with_budget(
             stage: "time samples".into(),
         });
     }
+    let open = if model.uses_open_system() {
+        if sol.sample_lost.len() != sol.samples.len()
+            || sol.sample_emitted.len() != sol.samples.len()
+        {
+            // Both equations count emissions; one that did not would be
+            // refused here rather than written with a column missing.
+            return Err(Error::NonFinite {
+                stage: "the lost population and scattered photons of the time samples".into(),
+            });
+        }
+        Some(
+            sol.sample_lost
+                .into_iter()
+                .zip(sol.sample_emitted)
+                .collect(),
+        )
+    } else {
+        None
+    };
     Ok(Evolution {
         samples: sol.samples,
+        open,
         method: sol.method,
         rtol: sol.rtol,
         atol: sol.atol,

@@ -97,7 +97,18 @@ impl Study {
     /// END), so a wrong path, a non-numeric value or a unit of the wrong
     /// dimension is bad input before anything runs. Returns the first model.
     pub fn preflight(&self, grid: &Grid) -> Result<Model, Error> {
+        self.preflight_open(grid).map(|(m, _)| m)
+    }
+
+    /// [`Study::preflight`], and whether the scheme uses the open-system
+    /// keys at the first or the last point ([`Model::uses_open_system`]):
+    /// the scan's rows then carry the lost population and the scattered
+    /// photons. A rate varied from 0 is open at one end of its axis, and
+    /// every axis is at its start in the first point and at its end in the
+    /// last, so the two decide for the whole grid.
+    pub fn preflight_open(&self, grid: &Grid) -> Result<(Model, bool), Error> {
         let mut first = None;
+        let mut open = false;
         for index in [0, grid.len() - 1] {
             let coords = grid.point(index);
             let m = self.model_at(grid, &coords).map_err(|e| {
@@ -106,9 +117,12 @@ impl Study {
                     format!("the scheme does not take {}: {e}", describe(grid, &coords)),
                 )
             })?;
+            open |= m.uses_open_system();
             first.get_or_insert(m);
         }
-        first.ok_or_else(|| bad("--vary", "empty grid"))
+        first
+            .map(|m| (m, open))
+            .ok_or_else(|| bad("--vary", "empty grid"))
     }
 
     /// One full run (exact + perturbative, no remedy checks, no peak
@@ -162,6 +176,8 @@ pub fn row_from_report(coords: &[f64], rep: &VetReport) -> ScanRow {
         max_spectator: rep.max_spectator,
         flagged: rep.flagged,
         estimates: rep.levels.iter().map(|l| l.estimate()).collect(),
+        lost: Some(rep.lost_population),
+        scattered_photons: rep.emitted,
     }
 }
 

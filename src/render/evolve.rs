@@ -9,7 +9,10 @@ use crate::plot::{self, Curve, LinePlot, PlotError};
 use crate::report::Provenance;
 
 /// The CSV: a `#` line (tool, scheme, SHA-256, method, tolerances), the
-/// header `time_s,<level ids>`, one row per sample.
+/// header `time_s,<level ids>`, one row per sample. A scheme that uses the
+/// open-system keys adds two columns after the levels: `lost` and
+/// `scattered_photons` (cumulative from the window start); any other
+/// scheme's CSV is the version-1 file, byte for byte.
 pub fn csv(prov: &Provenance, level_ids: &[String], evo: &Evolution) -> String {
     let mut csv = format!(
         "# {} {}; scheme {} sha256 {}; method {:?}; rtol {:e}; atol {:e}\n",
@@ -26,11 +29,17 @@ pub fn csv(prov: &Provenance, level_ids: &[String], evo: &Evolution) -> String {
         csv.push(',');
         csv.push_str(id);
     }
+    if evo.open.is_some() {
+        csv.push_str(",lost,scattered_photons");
+    }
     csv.push('\n');
-    for (t, pops) in &evo.samples {
+    for (i, (t, pops)) in evo.samples.iter().enumerate() {
         csv.push_str(&format!("{t:e}"));
         for p in pops {
             csv.push_str(&format!(",{p:e}"));
+        }
+        if let Some((lost, photons)) = evo.open.as_ref().and_then(|o| o.get(i)) {
+            csv.push_str(&format!(",{lost:e},{photons:e}"));
         }
         csv.push('\n');
     }
@@ -98,6 +107,7 @@ mod tests {
     fn evolution() -> Evolution {
         Evolution {
             samples: vec![(0.0, vec![1.0, 0.0]), (1e-6, vec![0.25, 0.75])],
+            open: None,
             method: MethodUsed::Exact,
             rtol: 1e-10,
             atol: 1e-12,
@@ -116,6 +126,21 @@ mod tests {
         assert_eq!(lines[1], "time_s,g,e");
         assert_eq!(lines[2], "0e0,1e0,0e0");
         assert_eq!(lines[3], "1e-6,2.5e-1,7.5e-1");
+        assert_eq!(lines.len(), 4);
+    }
+
+    #[test]
+    fn csv_of_an_open_scheme_adds_lost_and_scattered_photons() {
+        let prov = Provenance::new("open.yaml", "abc");
+        let ids = vec!["g".to_string(), "e".to_string()];
+        let mut evo = evolution();
+        evo.samples[1].1 = vec![0.25, 0.5];
+        evo.open = Some(vec![(0.0, 0.0), (0.25, 1.5)]);
+        let text = csv(&prov, &ids, &evo);
+        let lines: Vec<&str> = text.lines().collect();
+        assert_eq!(lines[1], "time_s,g,e,lost,scattered_photons");
+        assert_eq!(lines[2], "0e0,1e0,0e0,0e0,0e0");
+        assert_eq!(lines[3], "1e-6,2.5e-1,5e-1,2.5e-1,1.5e0");
         assert_eq!(lines.len(), 4);
     }
 

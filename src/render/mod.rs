@@ -14,8 +14,6 @@ pub mod markdown;
 pub mod numfmt;
 pub mod scan;
 pub mod scan_plot;
-#[cfg(test)]
-mod scan_tests;
 pub mod text;
 
 use crate::report::{InspectReport, VetReport};

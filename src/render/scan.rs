@@ -35,6 +35,9 @@ pub struct ScanHead<'a> {
     pub hash: &'a str,
     pub shard: Option<Shard>,
     pub level_ids: &'a [String],
+    /// The scheme uses the open-system keys: the rows end in `lost` and
+    /// `scattered_photons`.
+    pub open: bool,
 }
 
 /// Name of an axis column: the path with its unit, e.g.
@@ -47,14 +50,21 @@ pub fn axis_label(a: &Axis) -> String {
     }
 }
 
+/// The two columns a scan of a scheme with open-system keys adds at the
+/// end of every row.
+pub const OPEN_COLUMNS: [&str; 2] = ["lost", "scattered_photons"];
+
 /// Column names: one per axis, `P(<id>)` per level, `max_spectator`,
-/// `flagged`, `est(<id>)` per level.
-pub fn columns(axes: &[Axis], level_ids: &[String]) -> Vec<String> {
+/// `flagged`, `est(<id>)` per level, and with `open` [`OPEN_COLUMNS`].
+pub fn columns(axes: &[Axis], level_ids: &[String], open: bool) -> Vec<String> {
     let mut c: Vec<String> = axes.iter().map(axis_label).collect();
     c.extend(level_ids.iter().map(|id| format!("P({id})")));
     c.push("max_spectator".into());
     c.push("flagged".into());
     c.extend(level_ids.iter().map(|id| format!("est({id})")));
+    if open {
+        c.extend(OPEN_COLUMNS.map(String::from));
+    }
     c
 }
 
@@ -114,7 +124,7 @@ pub fn head(h: &ScanHead) -> String {
     if let Some(sh) = h.shard {
         let _ = writeln!(s, "{SHARD_PREFIX}{}/{}", sh.k, sh.n);
     }
-    s.push_str(&csv_line(&columns(h.axes, h.level_ids)));
+    s.push_str(&csv_line(&columns(h.axes, h.level_ids, h.open)));
     s.push('\n');
     s
 }
@@ -129,29 +139,46 @@ pub fn coords_prefix(coords: &[f64]) -> String {
     s
 }
 
-/// One data row, ending in '\n'. An absent estimate is an empty field.
-pub fn row(r: &ScanRow) -> String {
+fn optional(s: &mut String, v: Option<f64>) {
+    match v {
+        Some(v) => {
+            let _ = write!(s, ",{v:e}");
+        }
+        None => s.push(','),
+    }
+}
+
+/// One data row, ending in '\n'; with `open` (the head's) the lost
+/// population and the scattered photons end it. An absent value is an
+/// empty field.
+pub fn row(r: &ScanRow, open: bool) -> String {
     let mut s = coords_prefix(&r.coords);
     for p in &r.populations {
         let _ = write!(s, "{p:e},");
     }
     let _ = write!(s, "{:e},{}", r.max_spectator, r.flagged);
     for e in &r.estimates {
-        match e {
-            Some(v) => {
-                let _ = write!(s, ",{v:e}");
-            }
-            None => s.push(','),
-        }
+        optional(&mut s, *e);
+    }
+    if open {
+        optional(&mut s, r.lost);
+        optional(&mut s, r.scattered_photons);
     }
     s.push('\n');
     s
 }
 
-/// Read a data row back (without its '\n').
-pub fn parse_row(line: &str, n_axes: usize, n_levels: usize) -> Result<ScanRow, String> {
+/// Read a data row back (without its '\n'); `open`: the head names
+/// [`OPEN_COLUMNS`].
+pub fn parse_row(
+    line: &str,
+    n_axes: usize,
+    n_levels: usize,
+    open: bool,
+) -> Result<ScanRow, String> {
     let fields: Vec<&str> = line.split(',').collect();
-    let want = n_axes + 2 * n_levels + 2;
+    let extra = if open { OPEN_COLUMNS.len() } else { 0 };
+    let want = n_axes + 2 * n_levels + 2 + extra;
     if fields.len() != want {
         return Err(format!("{} fields where {want} are expected", fields.len()));
     }
@@ -174,22 +201,27 @@ pub fn parse_row(line: &str, n_axes: usize, n_levels: usize) -> Result<ScanRow, 
     let flagged = flagged_text
         .parse::<usize>()
         .map_err(|_| format!("'{flagged_text}' is not a count"))?;
-    let estimates = fields[n_axes + n_levels + 2..]
-        .iter()
-        .map(|s| {
-            if s.is_empty() {
-                Ok(None)
-            } else {
-                num(s).map(Some)
-            }
-        })
-        .collect::<Result<_, _>>()?;
+    let opt = |s: &&str| -> Result<Option<f64>, String> {
+        if s.is_empty() {
+            Ok(None)
+        } else {
+            num(s).map(Some)
+        }
+    };
+    let rest = &fields[n_axes + n_levels + 2..];
+    let estimates = rest[..n_levels].iter().map(opt).collect::<Result<_, _>>()?;
+    let (lost, scattered_photons) = match &rest[n_levels..] {
+        [l, p] => (opt(l)?, opt(p)?),
+        _ => (None, None),
+    };
     Ok(ScanRow {
         coords,
         populations,
         max_spectator,
         flagged,
         estimates,
+        lost,
+        scattered_photons,
     })
 }
 
@@ -249,6 +281,8 @@ pub struct HeadInfo {
     pub axes: Vec<Axis>,
     pub tolerance: f64,
     pub level_ids: Vec<String>,
+    /// The header ends in [`OPEN_COLUMNS`].
+    pub open: bool,
 }
 
 fn read_vary(line: &str) -> Option<Axis> {
@@ -318,11 +352,20 @@ pub fn read_head(t: &ScanText) -> Result<HeadInfo, String> {
     if axes.is_empty() || level_ids.is_empty() {
         return Err("no varied value or no level".into());
     }
+    let header: Vec<&str> = t.header.split(',').collect();
+    let open = if header == columns(&axes, &level_ids, true) {
+        true
+    } else if header == columns(&axes, &level_ids, false) {
+        false
+    } else {
+        return Err(format!("unexpected column header '{}'", t.header));
+    };
     Ok(HeadInfo {
         scheme_file,
         axes,
         tolerance,
         level_ids,
+        open,
     })
 }
 
@@ -463,132 +506,5 @@ pub fn tune_text(r: &TuneReport) -> String {
 }
 
 #[cfg(test)]
-mod tests {
-    use super::*;
-    use crate::scan::TuneFound;
-
-    fn axes() -> Vec<Axis> {
-        vec![Axis {
-            path: "fields.probe.tuned.detuning".into(),
-            unit: "MHz".into(),
-            start: -50.0,
-            end: 50.0,
-            count: 3,
-            spacing: Spacing::Linear,
-        }]
-    }
-
-    #[test]
-    fn head_names_columns_with_units_and_states_the_scan() {
-        let prov = Provenance::new("demo.yaml", "ab12");
-        let ids = vec!["g".to_string(), "e".to_string()];
-        let ax = axes();
-        let h = ScanHead {
-            provenance: &prov,
-            axes: &ax,
-            tolerance: None,
-            default_tolerance: 1e-3,
-            points: 3,
-            hash: "f00d",
-            shard: Some(Shard { k: 2, n: 4 }),
-            level_ids: &ids,
-        };
-        let text = head(&h);
-        assert!(text.ends_with(
-            "\nfields.probe.tuned.detuning [MHz],P(g),P(e),max_spectator,flagged,est(g),est(e)\n"
-        ));
-        assert!(text.contains(
-            "\n# vary 1: fields.probe.tuned.detuning from -5e1 to 5e1 MHz, 3 points, linear\n"
-        ));
-        let parsed = split(&text).unwrap();
-        assert_eq!(parsed.shard_text(), Some("2/4"));
-        assert_eq!(parsed.hash(), Some("f00d"));
-        assert_eq!(parsed.grid_points(), Some(3));
-        assert!(parsed.rows.is_empty() && parsed.tail.is_empty());
-        assert_eq!(parsed.body_start, text.len());
-        assert_eq!(parsed.common_comments().len(), parsed.comments.len() - 1);
-        assert!(text.contains(
-            "\n# tolerance 1e-3 (the scheme's default; per-level tolerances still apply)\n"
-        ));
-        // The head reads back to what it states.
-        let info = read_head(&parsed).unwrap();
-        assert_eq!(info.axes, ax);
-        assert_eq!(info.level_ids, ids);
-        assert_eq!(info.tolerance, 1e-3);
-        assert_eq!(info.scheme_file, "demo.yaml");
-    }
-
-    #[test]
-    fn rows_round_trip_exactly() {
-        let r = ScanRow {
-            coords: vec![-49.0, 1.0 / 3.0],
-            populations: vec![0.1 + 0.2, 1e-300],
-            max_spectator: 2.5e-7,
-            flagged: 3,
-            estimates: vec![None, Some(std::f64::consts::PI)],
-        };
-        let line = row(&r);
-        assert_eq!(
-            line,
-            "-4.9e1,3.333333333333333e-1,3.0000000000000004e-1,1e-300,2.5e-7,3,,3.141592653589793e0\n"
-        );
-        assert_eq!(parse_row(line.trim_end(), 2, 2).unwrap(), r);
-        assert!(line.starts_with(&coords_prefix(&r.coords)));
-        assert!(parse_row("1,2,3", 2, 2).is_err());
-        assert!(parse_row("1,x,1,1,0,0,,1", 2, 2).is_err());
-        assert!(parse_row("1,NaN,1,1,0,0,,1", 2, 2).is_err());
-    }
-
-    #[test]
-    fn split_keeps_a_cut_row_apart() {
-        let text = "# a\nx,y\n1,2\n3,4\n5,";
-        let s = split(text).unwrap();
-        assert_eq!(s.rows, vec!["1,2", "3,4"]);
-        assert_eq!(s.tail, "5,");
-        assert_eq!(s.body_start, "# a\nx,y\n".len());
-        assert!(split("# only comments\n").is_err());
-        assert_eq!(first_difference("a\nb\n", "a\nc\n"), Some((2, "b", "c")));
-        assert_eq!(first_difference("a\n", "a\n"), None);
-    }
-
-    #[test]
-    fn tune_summary_states_value_bracket_and_solves() {
-        let prov = Provenance::new("demo.yaml", "ab12");
-        let r = TuneReport {
-            provenance: prov,
-            axis: axes()[0].clone(),
-            goal: TuneGoal::Maximize { level: 1 },
-            level_ids: vec!["g".into(), "e".into()],
-            roles: vec![crate::report::Role::Initial, crate::report::Role::Target],
-            coarse_points: 41,
-            refine_solves: 14,
-            found: Some(TuneFound {
-                value: 0.25,
-                lo: 0.0,
-                hi: 1.0,
-                at_edge: false,
-                row: ScanRow {
-                    coords: vec![0.25],
-                    populations: vec![0.0, 1.0],
-                    max_spectator: 0.0,
-                    flagged: 0,
-                    estimates: vec![None, Some(1.2)],
-                },
-            }),
-        };
-        let t = tune_text(&r);
-        assert!(t.contains("maximise P(e)"), "{t}");
-        assert!(
-            t.contains("value: 2.500000000e-1 MHz +- 7.5e-1 MHz (bracket [0.000000000e0 MHz, 1.000000000e0 MHz])"),
-            "{t}"
-        );
-        assert!(
-            t.contains("P(e) = 1.0000000000e0  [target]  (estimate 1.200000e0)"),
-            "{t}"
-        );
-        assert!(
-            t.contains("solves: 55 (41 on the coarse grid, 14 refining)"),
-            "{t}"
-        );
-    }
-}
+#[path = "scan_tests.rs"]
+mod tests;

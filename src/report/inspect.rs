@@ -8,7 +8,7 @@
 use super::json_units;
 use super::safety::{safety_notes, SafetyNote};
 use super::{roles, Provenance, Role};
-use crate::model::{Dipole, Model};
+use crate::model::{Dipole, InitialKind, Model};
 use crate::units::C;
 use serde::Serialize;
 
@@ -107,6 +107,13 @@ pub struct InspectReport {
     /// would be a new key, allowed by the contract.
     #[serde(skip)]
     pub safety: Vec<SafetyNote>,
+    /// How the initial populations combine, and how many levels are
+    /// populated (the text says how a version-1 map of several is taken).
+    /// Not in the JSON.
+    #[serde(skip)]
+    pub initial_kind: InitialKind,
+    #[serde(skip)]
+    pub initial_levels: usize,
 }
 
 const TWO_PI: f64 = 2.0 * std::f64::consts::PI;
@@ -179,5 +186,7 @@ pub fn inspect(model: &Model, provenance: Provenance) -> InspectReport {
         tolerance: model.tolerance,
         detuning_cutoff: model.solver.detuning_cutoff,
         safety: safety_notes(model),
+        initial_kind: model.initial_kind(),
+        initial_levels: model.initial().iter().filter(|p| **p > 0.0).count(),
     }
 }

@@ -137,6 +137,8 @@ pub(crate) fn vet_report() -> VetReport {
         initial_kind: crate::model::InitialKind::Coherent,
         initial_levels: 1,
         scattered_photons: None,
+        open_system: false,
+        emitted: Some(0.0),
     }
 }
 
@@ -208,5 +210,7 @@ pub(crate) fn inspect_report() -> InspectReport {
             field: "probe".into(),
             peak_intensity: Some(1e4),
         }],
+        initial_kind: crate::model::InitialKind::Coherent,
+        initial_levels: 1,
     }
 }

@@ -295,6 +295,16 @@ pub struct VetReport {
     /// in every density-matrix run).
     #[serde(skip_serializing_if = "Option::is_none")]
     pub scattered_photons: Option<f64>,
+    /// Whether the scheme uses the open-system keys
+    /// ([`Model::uses_open_system`]): its scan rows then carry the lost
+    /// population and the scattered photons. Not in the JSON.
+    #[serde(skip)]
+    pub open_system: bool,
+    /// Spontaneous emissions per atom inside the window, all levels, in
+    /// every run ([`crate::solve::Solution::emitted`]); not in the JSON,
+    /// whose `scattered_photons` is the density-matrix value.
+    #[serde(skip)]
+    pub emitted: Option<f64>,
 }
 
 impl VetReport {
@@ -304,6 +314,7 @@ impl VetReport {
             ("lost population", self.lost_population),
             ("norm error", self.norm_error),
             ("scattered photons", self.scattered_photons.unwrap_or(0.0)),
+            ("emitted photons", self.emitted.unwrap_or(0.0)),
         ];
         if let Some((name, _)) = top.iter().find(|(_, v)| !v.is_finite()) {
             return Some(name.to_string());
@@ -528,6 +539,8 @@ pub fn vet(
         initial_kind: model.initial_kind(),
         initial_levels: model.initial().iter().filter(|p| **p > 0.0).count(),
         scattered_photons: solution.scattered_photons.as_ref().map(|p| p.iter().sum()),
+        open_system: model.uses_open_system(),
+        emitted: solution.emitted,
     })
 }
 

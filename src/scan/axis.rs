@@ -43,37 +43,9 @@ pub struct VarySpec {
 /// `1ea0` is the number 1 with the unit `ea0`.
 fn split_number(text: &str) -> Option<(f64, &str)> {
     let s = text.trim();
-    let b = s.as_bytes();
-    let mut i = 0;
-    if i < b.len() && (b[i] == b'+' || b[i] == b'-') {
-        i += 1;
-    }
-    let mantissa_start = i;
-    while i < b.len() && b[i].is_ascii_digit() {
-        i += 1;
-    }
-    if i < b.len() && b[i] == b'.' {
-        i += 1;
-        while i < b.len() && b[i].is_ascii_digit() {
-            i += 1;
-        }
-    }
-    let mantissa = &s[mantissa_start..i];
-    if mantissa.is_empty() || mantissa == "." {
+    let i = crate::units::numeric_prefix_len(s);
+    if i == 0 {
         return None;
-    }
-    if i < b.len() && (b[i] == b'e' || b[i] == b'E') {
-        let mut j = i + 1;
-        if j < b.len() && (b[j] == b'+' || b[j] == b'-') {
-            j += 1;
-        }
-        let digits = j;
-        while j < b.len() && b[j].is_ascii_digit() {
-            j += 1;
-        }
-        if j > digits {
-            i = j;
-        }
     }
     let value: f64 = s[..i].parse().ok()?;
     Some((value, s[i..].trim()))

@@ -42,8 +42,10 @@ pub(crate) fn bad(what: &str, message: impl Into<String>) -> Error {
 
 /// One computed grid point: the varied values (in their axes' units), the
 /// final population of every level, the largest spectator population, the
-/// number of flagged spectators, and the perturbative estimate of every
-/// level (None for an initially populated level).
+/// number of flagged spectators, the perturbative estimate of every
+/// level (None for an initially populated level), the population lost at
+/// the readout and the photons scattered inside the window per atom (None
+/// where unknown: a row read back from a file without those columns).
 #[derive(Debug, Clone, PartialEq)]
 pub struct ScanRow {
     pub coords: Vec<f64>,
@@ -51,6 +53,21 @@ pub struct ScanRow {
     pub max_spectator: f64,
     pub flagged: usize,
     pub estimates: Vec<Option<f64>>,
+    pub lost: Option<f64>,
+    pub scattered_photons: Option<f64>,
+}
+
+impl ScanRow {
+    /// The row as a file with (`open`) or without the open-system columns
+    /// holds it: without them the lost population and the photons are
+    /// unknown, as in a row read back from such a file.
+    pub fn as_written(mut self, open: bool) -> ScanRow {
+        if !open {
+            self.lost = None;
+            self.scattered_photons = None;
+        }
+        self
+    }
 }
 
 /// What `tune` looks for.

@@ -143,6 +143,13 @@ pub trait Equation {
     fn settled(&self, _y: &[f64], _out: &mut [f64]) -> Option<f64> {
         None
     }
+    /// Spontaneous emissions per atom so far, all levels together (the
+    /// sum of [`Equation::scattered_photons`] where the equation counts
+    /// them per level), without allocating; None where the equation does
+    /// not count them.
+    fn emitted(&self, _y: &[f64]) -> Option<f64> {
+        None
+    }
     /// The generator of the current stretch (after
     /// [`Equation::enter_stretch`]) into `out`, or false where the equation
     /// has none there (the exact stepper then does not apply).

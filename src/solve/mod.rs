@@ -126,6 +126,18 @@ pub struct Solution {
     pub excluded_drives: Vec<usize>,
     /// Time samples: (t, populations) when `SolveOptions::samples > 0`.
     pub samples: Vec<(f64, Vec<f64>)>,
+    /// Per sample, in the order of `samples`: the population lost from the
+    /// scheme so far (the equation's lost part, as `window_end_lost`).
+    pub sample_lost: Vec<f64>,
+    /// Per sample, in the order of `samples`: the spontaneous emissions per
+    /// atom from the window start to the sample, all levels together
+    /// (cumulative, so non-decreasing); empty where the equation does not
+    /// count them.
+    pub sample_emitted: Vec<f64>,
+    /// Spontaneous emissions per atom inside the window, all levels: the
+    /// sum of `scattered_photons` in a density-matrix run; in an amplitude
+    /// run, where every decay leaves the scheme, the window-end lost part.
+    pub emitted: Option<f64>,
 }
 
 /// Why a propagation failed.
@@ -197,10 +209,16 @@ pub fn solve(model: &Model, opts: &SolveOptions) -> Result<Solution, SolveError>
         && solution.lost.is_finite()
         && solution.norm_error.is_finite()
         && solution.positivity_error.is_finite()
+        && solution.emitted.is_none_or(f64::is_finite)
         && solution
             .samples
             .iter()
-            .all(|(t, p)| t.is_finite() && p.iter().all(|x| x.is_finite()));
+            .all(|(t, p)| t.is_finite() && p.iter().all(|x| x.is_finite()))
+        && solution
+            .sample_lost
+            .iter()
+            .chain(&solution.sample_emitted)
+            .all(|x| x.is_finite());
     if !finite {
         return Err(SolveError::NonFinite {
             stage: "the solution".into(),
@@ -220,7 +238,8 @@ fn run<E: Equation>(
 ) -> Result<Solution, SolveError> {
     let mut y = vec![0.0; eq.dim()];
     eq.initial_state(&mut y);
-    let extra = usize::from(plan.readout.is_some_and(|r| r.1));
+    // Room for the readout's own record where no sample is asked for there.
+    let extra = usize::from(plan.readout.is_some_and(|r| !r.1));
     let mut obs = ObserverSet::new(eq.levels(), plan.samples + extra, opts.peaks);
     let stats = match method {
         MethodUsed::Exact => {
@@ -237,7 +256,9 @@ fn run<E: Equation>(
         None => end.clone(),
     };
     let positivity_error = obs.positivity.error.max(readout::final_defect(eq, &y));
-    let r = readout::Readout::take(model, eq, &y, plan, &mut obs.samples.taken);
+    let r = readout::Readout::take(model, eq, &y, plan, &mut obs.samples);
+    let sample_lost = obs.samples.open.iter().map(|o| o.0).collect();
+    let sample_emitted = obs.samples.open.iter().map_while(|o| o.1).collect();
     Ok(Solution {
         method,
         dynamics: Dynamics::Amplitudes,
@@ -257,6 +278,9 @@ fn run<E: Equation>(
         atol: model.solver.atol,
         excluded_drives: fh.excluded.clone(),
         samples: obs.samples.taken,
+        sample_lost,
+        sample_emitted,
+        emitted: eq.emitted(&y),
     })
 }
 

@@ -10,6 +10,7 @@
 //! [`Equation`]).
 
 use super::equation::Equation;
+use super::observers::samples::Samples;
 use super::plan::Plan;
 use crate::model::{open, Model, Readout as When};
 
@@ -44,7 +45,7 @@ impl Readout {
         eq: &E,
         y: &[f64],
         plan: &Plan,
-        samples: &mut Vec<(f64, Vec<f64>)>,
+        samples: &mut Samples,
     ) -> Readout {
         let mut end = vec![0.0; eq.levels()];
         eq.populations(y, &mut end);
@@ -67,11 +68,14 @@ impl Readout {
                 (Some(p), Some(l)) => (p.clone(), l),
                 _ => (end, end_lost),
             },
-            (When::At(_), Some((position, alone))) if position < samples.len() => {
-                let p = if alone {
-                    samples.remove(position).1
+            (When::At(_), Some((position, asked_for))) if position < samples.taken.len() => {
+                // The plan's flag says whether a sample was asked for at
+                // the readout time; where not, the record is the
+                // readout's alone and leaves the samples.
+                let p = if asked_for {
+                    samples.taken[position].1.clone()
                 } else {
-                    samples[position].1.clone()
+                    samples.remove(position).1
                 };
                 let lost = (1.0 - p.iter().sum::<f64>()).max(0.0);
                 (p, lost)

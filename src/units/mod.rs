@@ -190,7 +190,7 @@ pub struct UnitError {
 /// Length of the numeric prefix of `s` (optional sign, digits, optional
 /// fraction, optional exponent). Returns 0 when `s` does not start with a
 /// number.
-fn numeric_prefix_len(s: &str) -> usize {
+pub(crate) fn numeric_prefix_len(s: &str) -> usize {
     let b = s.as_bytes();
     let mut i = 0;
     if i < b.len() && (b[i] == b'+' || b[i] == b'-') {
@@ -220,9 +220,7 @@ fn numeric_prefix_len(s: &str) -> usize {
 
 /// Where an exponent (`e` or `E`, an optional sign, at least one digit)
 /// starting at byte `i` of `b` ends; `i` when none starts there.
-// Same scan as the exponent of scan/axis.rs `split_number`: that copy can
-// call this one (scan/ was being edited elsewhere when this was shared).
-pub(crate) fn exponent_end(b: &[u8], i: usize) -> usize {
+fn exponent_end(b: &[u8], i: usize) -> usize {
     if i < b.len() && (b[i] == b'e' || b[i] == b'E') {
         let mut j = i + 1;
         if j < b.len() && (b[j] == b'+' || b[j] == b'-') {

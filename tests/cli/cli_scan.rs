@@ -7,6 +7,8 @@
 //! resonant rectangular pi pulse of field `probe` on [g, e] whose strength is
 //! set by a Rabi frequency (or intensity), not by a pulse area.
 
+use crate::cli_support::table::Table;
+use crate::cli_support::{bin_at_root as bin, ok};
 use serde_json::Value;
 use std::f64::consts::PI;
 use std::fs;
@@ -20,12 +22,6 @@ const HYPERFINE: &str = "level_schemes/hyperfine_manifold.yaml";
 const DETUNING: &str = "fields.probe.tuned.detuning";
 const DURATION: &str = "fields.probe.envelope.duration";
 
-fn bin() -> Command {
-    let mut c = Command::new(env!("CARGO_BIN_EXE_levelplan"));
-    c.current_dir(env!("CARGO_MANIFEST_DIR"));
-    c
-}
-
 fn run(args: &[&str]) -> Output {
     bin().args(args).output().expect("the binary runs")
 }
@@ -36,18 +32,6 @@ fn stderr(o: &Output) -> String {
 
 fn stdout(o: &Output) -> String {
     String::from_utf8_lossy(&o.stdout).into_owned()
-}
-
-fn ok(args: &[&str]) -> Output {
-    let o = run(args);
-    assert_eq!(
-        o.status.code(),
-        Some(0),
-        "levelplan {}\nstderr: {}",
-        args.join(" "),
-        stderr(&o)
-    );
-    o
 }
 
 struct TempDir(PathBuf);
@@ -85,58 +69,6 @@ impl TempDir {
 impl Drop for TempDir {
     fn drop(&mut self) {
         let _ = fs::remove_dir_all(&self.0);
-    }
-}
-
-/// A scan CSV read back: column names and numeric rows (empty field = None).
-struct Table {
-    comments: Vec<String>,
-    columns: Vec<String>,
-    rows: Vec<Vec<Option<f64>>>,
-}
-
-impl Table {
-    fn read(path: &Path) -> Table {
-        Table::parse(&fs::read_to_string(path).unwrap())
-    }
-    fn parse(text: &str) -> Table {
-        let comments: Vec<String> = text
-            .lines()
-            .take_while(|l| l.starts_with('#'))
-            .map(String::from)
-            .collect();
-        let mut lines = text.lines().skip(comments.len());
-        let columns: Vec<String> = lines
-            .next()
-            .expect("a header")
-            .split(',')
-            .map(String::from)
-            .collect();
-        let rows = lines
-            .map(|l| {
-                let r: Vec<Option<f64>> = l
-                    .split(',')
-                    .map(|f| (!f.is_empty()).then(|| f.parse::<f64>().expect("a number")))
-                    .collect();
-                assert_eq!(r.len(), columns.len(), "row {l}");
-                r
-            })
-            .collect();
-        Table {
-            comments,
-            columns,
-            rows,
-        }
-    }
-    fn col(&self, name: &str) -> usize {
-        self.columns
-            .iter()
-            .position(|c| c == name)
-            .unwrap_or_else(|| panic!("no column {name} in {:?}", self.columns))
-    }
-    fn values(&self, name: &str) -> Vec<f64> {
-        let k = self.col(name);
-        self.rows.iter().map(|r| r[k].expect("a value")).collect()
     }
 }
 

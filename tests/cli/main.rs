@@ -13,5 +13,6 @@ mod cookbook;
 mod honesty;
 mod json_golden;
 mod limits;
+mod open_csv;
 mod output_files;
 mod readme;

@@ -9,6 +9,7 @@
 //! (Liouvillian) and the adaptive stepper. Also: one-term channels give the
 //! same result as `decays_to` branching. Invented, illustrative numbers.
 
+use crate::fixture_support;
 use crate::solve_support::{rect, tau, Builder};
 use levelplan::model::{Jump, JumpTerm, Level, Method, Model};
 use levelplan::solve::{solve, SolveOptions};
@@ -17,11 +18,9 @@ use serde_json::Value;
 const TOL: f64 = 1e-6;
 
 fn fixture(name: &str) -> Value {
-    let path = format!(
-        "{}/tests/fixtures/channels/{name}.json",
-        env!("CARGO_MANIFEST_DIR")
-    );
-    serde_json::from_str(&std::fs::read_to_string(&path).expect("fixture")).expect("json")
+    let fx = fixture_support::read_json("tests/fixtures/channels", &format!("{name}.json"));
+    fixture_support::assert_pinned(name, &fx["metadata"]["versions"]);
+    fx
 }
 
 fn num(v: &Value, key: &str) -> f64 {

@@ -5,6 +5,7 @@
 //! `cargo test --release --test physics propagation_rabi::`.
 
 mod estimate_support;
+mod fixture_support;
 mod solve_support;
 
 mod decay_channels;
@@ -12,6 +13,7 @@ mod demo_schemes;
 mod estimate;
 mod estimate_rates;
 mod estimate_remedy;
+mod manifold_reference;
 mod open_reference;
 mod propagation_budget;
 mod propagation_dop853;

@@ -15,9 +15,8 @@
 //! Populations, lost population, settled populations and scattered photons
 //! are compared at 1e-6 absolute.
 
+use crate::fixture_support::{self, root};
 use serde_json::Value;
-use std::path::Path;
-use std::process::Command;
 
 const DIR: &str = "tests/fixtures/open";
 const TOL: f64 = 1e-6;
@@ -32,42 +31,18 @@ const FIXTURES: &[&str] = &[
     "e_ladder_mixture_cascade",
 ];
 
-/// Versions the fixtures were written with (scripts/open_reference.py).
-const PINNED: &[(&str, &str)] = &[
-    ("qutip", "5.3.1"),
-    ("numpy", "2.4.6"),
-    ("scipy", "1.17.1"),
-    ("sympy", "1.14.0"),
-];
-
-fn root() -> &'static Path {
-    Path::new(env!("CARGO_MANIFEST_DIR"))
-}
-
 fn read_json(name: &str) -> Value {
-    let path = root().join(DIR).join(name);
-    let text = std::fs::read_to_string(&path).unwrap_or_else(|e| panic!("{}: {e}", path.display()));
-    serde_json::from_str(&text).unwrap_or_else(|e| panic!("{}: {e}", path.display()))
+    fixture_support::read_json(DIR, name)
 }
 
 /// `levelplan vet <scheme> --format json`: the report, or why there is none.
 fn vet(scheme: &str) -> Result<Value, String> {
-    let out = Command::new(env!("CARGO_BIN_EXE_levelplan"))
-        .current_dir(root())
-        .args(["vet", scheme, "--format", "json"])
-        .output()
-        .expect("the binary runs");
-    let stderr = String::from_utf8_lossy(&out.stderr);
-    if !matches!(out.status.code(), Some(0 | 3)) {
-        return Err(format!(
-            "{scheme}: `levelplan vet` exited with {:?} and wrote no report (0 or 3 \
-             expected). The scheme uses the open-system keys of scheme contract v2 \
-             (decays_to, dephasing, fields.<id>.linewidth, initial mixture, readout): \
-             until the density-matrix solver is merged this test fails here.\nstderr:\n{stderr}",
-            out.status.code()
-        ));
-    }
-    serde_json::from_slice(&out.stdout).map_err(|e| format!("{scheme}: report is not JSON: {e}"))
+    fixture_support::vet_json(scheme).map_err(|(code, stderr)| {
+        format!(
+            "{scheme}: `levelplan vet` exited with {code:?} and wrote no report (0 or 3 \
+             expected).\nstderr:\n{stderr}"
+        )
+    })
 }
 
 fn level<'a>(report: &'a Value, id: &str) -> Option<&'a Value> {
@@ -389,10 +364,7 @@ fn settle(fx: &Value) -> Vec<(String, f64)> {
 fn fixtures_are_consistent_and_record_their_versions() {
     for name in FIXTURES {
         let fx = read_json(&format!("{name}.json"));
-        let versions = &fx["metadata"]["versions"];
-        for (lib, v) in PINNED {
-            assert_eq!(versions[lib].as_str(), Some(*v), "{name}: {lib} version");
-        }
+        fixture_support::assert_pinned(name, &fx["metadata"]["versions"]);
         let sum = |key: &str| -> f64 {
             fx[key]
                 .as_object()

@@ -802,6 +802,18 @@ proptest! {
         if m.levels().iter().all(|l| l.gamma == 0.0) {
             prop_assert_eq!(s.lost, 0.0);
         }
+        // The samples (the evolve CSV's lost and scattered_photons) carry
+        // the same loss: non-decreasing, ending in the window-end loss, and
+        // on the amplitude equation every loss is one emission.
+        let sampled = run(&m, 7).unwrap();
+        prop_assert_eq!(sampled.sample_lost.len(), 7);
+        prop_assert_eq!(&sampled.sample_lost, &sampled.sample_emitted);
+        for w in sampled.sample_lost.windows(2) {
+            prop_assert!(w[1] >= w[0] - 1e-12, "{:?}\n{}", sampled.sample_lost, text);
+        }
+        let last = sampled.sample_lost[6];
+        prop_assert!((last - sampled.window_end_lost).abs() <= 1e-15, "{} {}", last, sampled.window_end_lost);
+        prop_assert!((last - s.lost).abs() <= bound, "{} {}\n{}", last, s.lost, text);
         tolerance_proportionality(&spec, &w, &m, &s)?;
     }
 }

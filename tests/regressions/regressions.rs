@@ -372,3 +372,58 @@ fn a_remedy_check_that_fails_is_reported_not_checked() {
         .contains("method 'exact' needs a piecewise-constant frame Hamiltonian"));
     assert!(r.exact_at_length.is_some());
 }
+
+/// A resonant two-level pulse over 1 us, read out at `readout`.
+fn read_out_at(readout: &str) -> String {
+    format!(
+        r#"levels:
+  g: {{energy: "0 cm^-1"}}
+  e: {{energy: "12000 cm^-1", lifetime: "100 ns", decays_to: {{g: 1}}}}
+initial: g
+couplings:
+  - {{between: [g, e], dipole: 1}}
+fields:
+  L:
+    tuned: {{to: [g, e], detuning: "0 MHz"}}
+    rabi: {{on: [g, e], value: "2 MHz"}}
+    envelope: {{shape: rectangular, start: "0 ns", duration: "1000 ns"}}
+window: {{start: "0 ns", end: "1000 ns"}}
+readout: "{readout}"
+"#
+    )
+}
+
+// Found in review (adding the open-system columns of the evolve CSV). The
+// plan marks whether a sample was asked for at a readout time inside the
+// window; the readout read that flag the wrong way round. An off-grid
+// readout left its own record among the samples (evolve wrote one row
+// too many, at the readout time), and a readout on a sample time took
+// that sample out (one row missing). The readout populations were right
+// either way.
+#[test]
+fn evolve_samples_are_those_asked_for_whatever_the_readout_time() {
+    for (readout, at_sample) in [("397 ns", false), ("400 ns", true)] {
+        let m = parse(&read_out_at(readout));
+        let evo = levelplan::pipeline::evolve(&m, 11).expect("evolve");
+        let times: Vec<f64> = evo.samples.iter().map(|s| s.0).collect();
+        assert_eq!(times.len(), 11, "{readout}: {times:?}");
+        for (i, t) in times.iter().enumerate() {
+            assert!((t - i as f64 * 1e-7).abs() < 1e-15, "{readout}: {times:?}");
+        }
+        let open = evo.open.as_ref().expect("readout is an open-system key");
+        assert_eq!(open.len(), 11);
+        // The readout populations are the state at the readout time.
+        let s = run(&m);
+        let t_r = if at_sample { 4e-7 } else { 3.97e-7 };
+        let pe = s.final_populations[1];
+        assert!(pe > 0.1 && pe.is_finite(), "{readout}: {pe}");
+        if at_sample {
+            assert!((evo.samples[4].1[1] - pe).abs() < 1e-9, "{readout}");
+        } else {
+            assert!(
+                times.iter().all(|t| (t - t_r).abs() > 1e-12),
+                "{readout}: the readout's own record is not a sample"
+            );
+        }
+    }
+}

@@ -6,35 +6,13 @@
 //! numbers of Steck's tables are quoted here, not re-derived.
 
 use super::*;
+use crate::atom::rb87::{excited, ground};
 use crate::atom::structure::{sublevels, Manifold, Sublevel};
 use crate::model::rabi_from_intensity;
 use crate::units::EA0;
 
-const MHZ: f64 = 2.0 * PI * 1e6;
 /// 87Rb D2 transition frequency (Steck): 384.2304844685 THz.
 const OMEGA_D2: f64 = 2.0 * PI * 384.230_484_468_5e12;
-
-fn ground() -> Manifold {
-    Manifold {
-        two_j: 1,
-        two_i: 3,
-        a: 3_417.341_305_452_145 * MHZ,
-        b: 0.0,
-        g_j: 2.002_331_13,
-        g_i: -0.000_995_141_4,
-    }
-}
-
-fn excited() -> Manifold {
-    Manifold {
-        two_j: 3,
-        two_i: 3,
-        a: 84.7185 * MHZ,
-        b: 12.4965 * MHZ,
-        g_j: 1.3362,
-        g_i: -0.000_995_141_4,
-    }
-}
 
 fn levels(m: &Manifold, tesla: f64) -> Vec<Sublevel> {
     sublevels(m, tesla).expect("sublevels")

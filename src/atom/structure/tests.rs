@@ -3,39 +3,11 @@
 
 use super::*;
 use crate::units::H;
-use std::f64::consts::PI;
 
-/// 1 MHz as an angular frequency (rad/s).
-const MHZ: f64 = 2.0 * PI * 1e6;
 /// 1 G in tesla.
 const GAUSS: f64 = 1e-4;
 
-/// 87Rb 5S1/2: D. A. Steck, "Rubidium 87 D Line Data" (A, g_J, g_I; from
-/// memory).
-fn rb87_s12() -> Manifold {
-    Manifold {
-        two_j: 1,
-        two_i: 3,
-        a: 3_417.341_305_452_145 * MHZ,
-        b: 0.0,
-        g_j: 2.002_331_13,
-        g_i: -0.000_995_141_4,
-    }
-}
-
-/// 87Rb 5P3/2: A, B from E. Arimondo, M. Inguscio and P. Violino, Rev. Mod.
-/// Phys. 49, 31 (1977) as quoted by Steck; g_J = 1.3362 and g_I from Steck
-/// (all from memory).
-fn rb87_p32() -> Manifold {
-    Manifold {
-        two_j: 3,
-        two_i: 3,
-        a: 84.7185 * MHZ,
-        b: 12.4965 * MHZ,
-        g_j: 1.3362,
-        g_i: -0.000_995_141_4,
-    }
-}
+use crate::atom::rb87::{excited as rb87_p32, ground as rb87_s12, MHZ};
 
 fn find(levels: &[Sublevel], two_f: i32, two_m_f: i32) -> &Sublevel {
     levels

@@ -12,6 +12,7 @@ pub use vet::vet_doc;
 
 use super::numfmt::{self, Num};
 use crate::estimate::Order;
+use crate::model::InitialKind;
 use crate::report::{InspectReport, SafetyNote};
 use crate::solve::MethodUsed;
 
@@ -23,6 +24,15 @@ pub const SAFETY_TEXT: &str = "Laser safety: these numbers are for planning only
 
 /// Plain statement of what the numbers are.
 pub const MODEL_TEXT: &str = "Results are model calculations (Schrodinger equation with the stated approximations); check them against measurement.";
+
+/// The note under the levels of `vet` and `inspect` when the initial state
+/// is the version-1 map with more than one populated level: how it is
+/// taken, and how to write a mixture instead. None otherwise.
+pub fn initial_note(kind: InitialKind, populated: usize) -> Option<String> {
+    (kind == InitialKind::Coherent && populated > 1).then(|| {
+        "initial: the populations are taken as a coherent superposition (amplitudes sqrt(p), phase 0); write initial: {mixture: {...}} for an incoherent mixture.".into()
+    })
+}
 
 /// How a cell should catch the eye.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -282,7 +292,9 @@ pub fn inspect_doc(r: &InspectReport) -> Doc {
                 &[Left, Left, Right, Right, Right, Left, Right],
                 levels,
             )),
-            notes: Vec::new(),
+            notes: initial_note(r.initial_kind, r.initial_levels)
+                .into_iter()
+                .collect(),
         },
         Section {
             heading: "Drives (field x coupling)".into(),

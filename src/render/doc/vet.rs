@@ -5,10 +5,10 @@
 //! compute (every number comes from the report) or pick a format.
 
 use super::{
-    method_name, numfmt, order_name, provenance_meta, safety_section, table, window_meta, Align,
-    Cell, Doc, Mark, Section, MODEL_TEXT, TWO_PI,
+    initial_note, method_name, numfmt, order_name, provenance_meta, safety_section, table,
+    window_meta, Align, Cell, Doc, Mark, Section, MODEL_TEXT, TWO_PI,
 };
-use crate::model::{Dynamics, InitialKind, Readout};
+use crate::model::{Dynamics, Readout};
 use crate::report::{Channel, LevelRow, RemedyCheck, RemedyRow, Role, SourceRow, VetReport};
 
 fn status_cell(row: &LevelRow) -> Cell {
@@ -146,11 +146,7 @@ fn open_notes(r: &VetReport) -> Vec<String> {
             numfmt::sci(photons, 3, "").plain()
         ));
     }
-    if r.initial_kind == InitialKind::Coherent && r.initial_levels > 1 {
-        notes.push(
-            "initial: the populations are taken as a coherent superposition (amplitudes sqrt(p), phase 0); write initial: {mixture: {...}} for an incoherent mixture.".into(),
-        );
-    }
+    notes.extend(initial_note(r.initial_kind, r.initial_levels));
     for l in r.levels.iter().filter(|l| l.readout_sensitive) {
         let end = l.window_end_population.unwrap_or(l.final_population);
         notes.push(format!(

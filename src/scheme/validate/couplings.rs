@@ -15,6 +15,8 @@ use super::ctx::{Ctx, Sign};
 use super::fields::FieldIds;
 use super::id_list;
 use super::levels::Levels;
+use super::manifold_couplings::{self, Generated};
+use super::manifolds::Manifolds;
 use crate::model::{Dipole, Drive};
 use crate::units::{self, Kind};
 
@@ -27,16 +29,25 @@ pub(super) struct CouplingInfo {
     pub dipole_text: String,
     /// Field indices that drive it.
     pub fields: Vec<usize>,
+    /// Index of the `couplings:` entry it comes from (a coupling between
+    /// manifolds makes many).
+    pub source: usize,
+    /// For a coupling between sublevels: the spherical component of its
+    /// absorption, q = m_F' - m_F (the field's polarisation selects it).
+    pub q: Option<i32>,
 }
 
-/// Every coupling (None where its level pair did not validate); None when
-/// there are too many couplings.
+/// Every coupling (None where its level pair did not validate), those
+/// between manifolds expanded into their sublevel couplings after the
+/// others, and what those generate besides; None when there are too many
+/// couplings.
 pub(super) fn couplings(
     raw: &RawScheme,
     ctx: &mut Ctx,
     levels: &Levels,
     fields: &FieldIds,
-) -> Option<Vec<Option<CouplingInfo>>> {
+    manifolds: &Manifolds,
+) -> Option<(Vec<Option<CouplingInfo>>, Generated)> {
     let cp = KeyPath::root().k("couplings");
     let raw_couplings = raw.couplings.as_deref().unwrap_or(&[]);
     if !ctx.within(
@@ -49,16 +60,34 @@ pub(super) fn couplings(
         return None;
     }
     let mut out = Vec::with_capacity(raw_couplings.len());
+    let mut specs = Vec::new();
     for (ci, rc) in raw_couplings.iter().enumerate() {
-        out.push(coupling(ctx, rc, &cp.i(ci), levels, fields));
+        let path = cp.i(ci);
+        if manifold_couplings::names_manifold(rc, manifolds) {
+            let list = driven_by(ctx, rc, &path, fields);
+            if let Some(s) = manifold_couplings::read(ctx, rc, &path, ci, manifolds, list) {
+                specs.push(s);
+            }
+        } else {
+            out.push(coupling(ctx, rc, &path, ci, levels, fields));
+        }
     }
-    Some(out)
+    let generated = manifold_couplings::generate(ctx, &specs, manifolds, &mut out);
+    ctx.within(
+        &cp,
+        out.len(),
+        MAX_COUPLINGS,
+        "couplings",
+        "generated couplings",
+    )
+    .then_some((out, generated))
 }
 
 fn coupling(
     ctx: &mut Ctx,
     rc: &RawCoupling,
     path: &KeyPath,
+    source: usize,
     levels: &Levels,
     fields: &FieldIds,
 ) -> Option<CouplingInfo> {
@@ -96,6 +125,8 @@ fn coupling(
         dipole,
         dipole_text,
         fields: field_list,
+        source,
+        q: None,
     })
 }
 
@@ -216,28 +247,55 @@ fn einstein_a(
 }
 
 /// The drives, in field order then coupling order (Rabi frequencies 0 until
-/// `fields::strengths` sets them); None when there are too many.
+/// `fields::strengths` sets them), each with the factor its field's
+/// polarisation puts on its dipole (sqrt of the intensity fraction of the
+/// component q of a sublevel coupling; 1 otherwise; a component the field
+/// does not have drives nothing); None when there are too many.
 pub(super) fn drives(
     ctx: &mut Ctx,
     field_ids: &[String],
+    polarizations: &[Option<[f64; 3]>],
     couplings: &[Option<CouplingInfo>],
     levels: &Levels,
-) -> Option<Vec<Drive>> {
+) -> Option<(Vec<Drive>, Vec<f64>)> {
     let cp = KeyPath::root().k("couplings");
     let mut drives: Vec<Drive> = Vec::new();
+    let mut projection = Vec::new();
     let mut drive_count = 0usize;
     for (fi, fid) in field_ids.iter().enumerate() {
         let mut seen_pairs: HashMap<(usize, usize), usize> = HashMap::new();
+        let mut told = false;
         for (ci, c) in couplings.iter().enumerate() {
             let Some(c) = c else { continue };
             if !c.fields.contains(&fi) {
+                continue;
+            }
+            let factor = match (c.q, polarizations.get(fi).copied().flatten()) {
+                (None, _) => 1.0,
+                (Some(q), Some(p)) => p[(q + 1) as usize].sqrt(),
+                (Some(_), None) => {
+                    if !told {
+                        ctx.missing(
+                            &KeyPath::root().k("fields").k(fid).k("polarization"),
+                            format!(
+                                "a polarization (sigma+, sigma-, pi or {{sigma+: p, pi: p, sigma-: p}}), \
+                                 since '{fid}' drives the manifold coupling couplings[{}]",
+                                c.source
+                            ),
+                        );
+                        told = true;
+                    }
+                    continue;
+                }
+            };
+            if factor == 0.0 {
                 continue;
             }
             drive_count += 1;
             if let Some(&first) = seen_pairs.get(&(c.lower, c.upper)) {
                 let (lo, up) = (&levels.list[c.lower].id, &levels.list[c.upper].id);
                 ctx.push(
-                    &cp.i(ci).k("between"),
+                    &cp.i(c.source).k("between"),
                     format!(
                         "one coupling per level pair for field '{fid}' (give each coupling a `fields:` list)"
                     ),
@@ -247,15 +305,16 @@ pub(super) fn drives(
                 );
                 continue;
             }
-            seen_pairs.insert((c.lower, c.upper), ci);
+            seen_pairs.insert((c.lower, c.upper), c.source);
             drives.push(Drive {
                 field: fi,
                 coupling: ci,
                 rabi: 0.0,
             });
+            projection.push(factor);
         }
     }
     let limit = "drives (field x coupling pairs)";
     ctx.within(&cp, drive_count, MAX_DRIVES, limit, "drives")
-        .then_some(drives)
+        .then_some((drives, projection))
 }

@@ -60,6 +60,8 @@ pub(super) struct FieldInfo {
     pub chirp: f64,
     pub phase: f64,
     pub rwa: bool,
+    /// Intensity fractions (sigma-, pi, sigma+), when given.
+    pub polarization: Option<[f64; 3]>,
 }
 
 // Same steps as the level list of levels.rs (count limit, first valid id): other records.
@@ -123,6 +125,7 @@ pub(super) fn field(
         chirp,
         phase,
         rwa: f.rwa.unwrap_or(true),
+        polarization: super::polarization::polarization(ctx, f, path),
     }
 }
 
@@ -301,6 +304,8 @@ pub(super) struct Strengths<'s> {
     pub paths: Vec<&'s KeyPath>,
     pub couplings: &'s [Option<CouplingInfo>],
     pub levels: &'s Levels,
+    /// Per drive: the factor the field's polarisation puts on the dipole.
+    pub projection: &'s [f64],
 }
 
 /// Rabi frequency of every drive, and the peak intensity of every field
@@ -352,9 +357,11 @@ fn by_intensity(
         let ci = drives[k].coupling;
         let Some(c) = &s.couplings[ci] else { continue };
         match c.dipole {
-            Some(Dipole::Absolute(d)) => drives[k].rabi = rabi_from_intensity(d, value),
+            Some(Dipole::Absolute(d)) => {
+                drives[k].rabi = rabi_from_intensity(d * s.projection[k], value);
+            }
             Some(Dipole::Relative(_)) => ctx.push(
-                &cp.i(ci).k("dipole"),
+                &cp.i(c.source).k("dipole"),
                 format!(
                     "a dipole with a unit (ea0, D, C m), since field '{}' sets its strength by {by}",
                     finfo.id
@@ -424,9 +431,10 @@ fn by_reference(
     let rci = drives[rk].coupling;
     let rc = s.couplings[rci].as_ref()?;
     let dref = rc.dipole?;
+    let pref = s.projection[rk];
     if dref.value() == 0.0 {
         ctx.push(
-            &cp.i(rci).k("dipole"),
+            &cp.i(rc.source).k("dipole"),
             format!(
                 "a nonzero dipole (field '{}' sets its {key} on this coupling)",
                 finfo.id
@@ -476,19 +484,21 @@ fn by_reference(
                 ("a bare relative dipole", "a dipole with a unit")
             };
             ctx.push(
-                &cp.i(ci).k("dipole"),
+                &cp.i(c.source).k("dipole"),
                 format!(
-                    "{want} like couplings[{rci}], since field '{}' scales its Rabi frequencies by the dipole ratio",
+                    "{want} like couplings[{}], since field '{}' scales its Rabi frequencies by the dipole ratio",
+                    rc.source,
                     finfo.id
                 ),
                 format!("'{}' ({is})", c.dipole_text),
             );
             continue;
         }
-        drives[k].rabi = rabi_by_dipole_ratio(omega_ref, d.value(), dref.value());
+        drives[k].rabi =
+            rabi_by_dipole_ratio(omega_ref, d.value() * s.projection[k], dref.value() * pref);
     }
     match dref {
-        Dipole::Absolute(d) => Some(intensity_from_rabi(omega_ref, d)),
+        Dipole::Absolute(d) => Some(intensity_from_rabi(omega_ref, d * pref)),
         Dipole::Relative(_) => None,
     }
 }

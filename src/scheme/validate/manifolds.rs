@@ -45,16 +45,6 @@ pub(super) struct ManifoldInfo {
     pub two_f: Vec<i32>,
 }
 
-impl ManifoldInfo {
-    /// How many levels the manifold generated.
-    pub fn len(&self) -> usize {
-        match self.resolve {
-            Resolve::Sublevels => self.sublevels.len(),
-            Resolve::Hyperfine => self.two_f.len(),
-        }
-    }
-}
-
 /// The manifolds of a scheme and the bias field (T).
 #[derive(Default)]
 pub(super) struct Manifolds {
@@ -177,7 +167,13 @@ pub(super) fn manifolds(raw: &RawScheme, ctx: &mut Ctx, levels: &mut Levels) -> 
             out.list.push(info);
         }
     }
-    ctx.within(&mp, levels.list.len(), MAX_LEVELS, "levels", "generated and written levels");
+    ctx.within(
+        &mp,
+        levels.list.len(),
+        MAX_LEVELS,
+        "levels",
+        "generated and written levels",
+    );
     out
 }
 
@@ -209,7 +205,7 @@ fn constants(ctx: &mut Ctx, m: &RawManifold, path: &KeyPath, field: f64) -> Opti
             format!("B with J = {}, I = {}", half_text(two_j), half_text(two_i)),
         );
     }
-    if g_j.is_none() && field != 0.0 && m.g_j.is_none() {
+    if m.g_j.is_none() && field != 0.0 {
         ctx.missing(
             &path.k("g_J"),
             "g_J (a bare number), since magnetic_field is not zero",

@@ -20,7 +20,10 @@ mod fields;
 mod initial;
 mod levels;
 mod limits;
+mod manifold_couplings;
+mod manifolds;
 mod open;
+mod polarization;
 mod window;
 
 use std::collections::HashMap;
@@ -32,7 +35,7 @@ use crate::model::{Coupling, Field, Model};
 pub use crate::model::valid_id;
 pub(crate) use ctx::Ctx;
 
-const ID_RULE: &str = "an id made of letters, digits, _ ' + or -";
+const ID_RULE: &str = "an id made of letters, digits, _ ' + - or /";
 
 /// A population sum for messages: 12 significant digits, so that 0.7 + 0.2
 /// reads 0.9 while a miss of 1e-9 still shows.
@@ -91,9 +94,13 @@ fn first_valid_id(
 /// Validate a mirror into a model, collecting every problem in `ctx`.
 pub(crate) fn validate(raw: &RawScheme, ctx: &mut Ctx) -> Option<Model> {
     let mut levels = levels::levels(raw, ctx)?;
+    let manifolds = manifolds::manifolds(raw, ctx, &mut levels);
     open::level_keys(raw, ctx, &mut levels);
     let field_ids = fields::field_ids(raw, ctx)?;
-    let couplings = couplings::couplings(raw, ctx, &levels, &field_ids)?;
+    let (couplings, generated) = couplings::couplings(raw, ctx, &levels, &field_ids, &manifolds)?;
+    for (k, branches) in generated.decays {
+        levels.list[k].decays_to = branches;
+    }
     let empty_field = super::raw::RawField::default();
     let infos: Vec<fields::FieldInfo> = field_ids
         .entries
@@ -103,12 +110,15 @@ pub(crate) fn validate(raw: &RawScheme, ctx: &mut Ctx) -> Option<Model> {
             fields::field(ctx, id, f, path, &levels, &couplings)
         })
         .collect();
-    let mut drives = couplings::drives(ctx, &field_ids.ids, &couplings, &levels)?;
+    let polarizations: Vec<Option<[f64; 3]>> = infos.iter().map(|f| f.polarization).collect();
+    let (mut drives, projection) =
+        couplings::drives(ctx, &field_ids.ids, &polarizations, &couplings, &levels)?;
     let strengths = fields::Strengths {
         fields: &infos,
         paths: field_ids.entries.iter().map(|e| &e.2).collect(),
         couplings: &couplings,
         levels: &levels,
+        projection: &projection,
     };
     let peak_intensity = fields::strengths(ctx, &strengths, &mut drives);
     let (initial, initial_kind) = initial::initial(raw, ctx, &levels);
@@ -171,6 +181,7 @@ pub(crate) fn validate(raw: &RawScheme, ctx: &mut Ctx) -> Option<Model> {
         .tolerance(tolerance)
         .window(window)
         .solver(solver)
+        .jumps(generated.jumps)
         .build_all();
     match built {
         Ok(model) => Some(model),

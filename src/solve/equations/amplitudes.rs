@@ -112,6 +112,13 @@ impl Equation for Amplitudes<'_> {
         y[2 * self.frame.n]
     }
 
+    /// Every decay of this equation leaves the scheme by spontaneous
+    /// emission (no decay route feeds a level), so the lost part counts
+    /// the emissions: sum_k Gamma_k x integral |a_k|^2 dt.
+    fn emitted(&self, y: &[f64]) -> Option<f64> {
+        Some(self.lost(y))
+    }
+
     /// -i H of the current stretch (envelopes at its midpoint; the frame
     /// detunings at the window start: a piecewise-constant frame Hamiltonian
     /// has no detuning rate), and q = Gamma.

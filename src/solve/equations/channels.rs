@@ -77,10 +77,11 @@ impl Channels {
         let diff = |j: usize, k: usize| (ph[j].0 - ph[k].0, ph[j].1 - ph[k].1, ph[j].2 - ph[k].2);
         let mut out = Channels::default();
         for jump in model.jumps() {
-            for t in &jump.terms {
-                for u in &jump.terms {
-                    let (r1, s1, p1) = diff(t.lower, t.upper);
-                    let (r2, s2, p2) = diff(u.lower, u.upper);
+            // Each term's frame rotation, once: terms^2 pairs read them.
+            let rot: Vec<(f64, f64, f64)> =
+                jump.terms.iter().map(|t| diff(t.lower, t.upper)).collect();
+            for (t, &(r1, s1, p1)) in jump.terms.iter().zip(&rot) {
+                for (u, &(r2, s2, p2)) in jump.terms.iter().zip(&rot) {
                     if same(r1, r2) && same(s1, s2) {
                         let c = Complex64::from_polar(t.amplitude * u.amplitude, p1 - p2);
                         out.feeds.push(Feed {

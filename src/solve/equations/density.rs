@@ -236,6 +236,11 @@ impl Equation for DensityMatrix<'_> {
         true
     }
 
+    fn emitted(&self, y: &[f64]) -> Option<f64> {
+        let base = self.lost_index() + 2;
+        Some((0..self.frame.n).map(|k| y[base + 2 * k]).sum())
+    }
+
     /// The Liouvillian of the current stretch acting on z = (rho row-major,
     /// lost, emissions), for N up to [`EXACT_MAX_LEVELS`].
     fn generator(&self, out: &mut Generator) -> bool {

@@ -2,12 +2,35 @@
 //! run leaves no output file and does not touch an existing one.
 #![allow(dead_code)]
 
+pub mod table;
+
 use std::path::{Path, PathBuf};
 use std::process::{Command, Output};
 use std::time::Instant;
 
 pub fn bin() -> Command {
     Command::new(env!("CARGO_BIN_EXE_levelplan"))
+}
+
+/// The binary, run from the repository root (the tests' paths are
+/// relative to it).
+pub fn bin_at_root() -> Command {
+    let mut c = bin();
+    c.current_dir(env!("CARGO_MANIFEST_DIR"));
+    c
+}
+
+/// Run the binary from the repository root and require exit status 0.
+pub fn ok(args: &[&str]) -> Output {
+    let o = bin_at_root().args(args).output().expect("the binary runs");
+    assert_eq!(
+        o.status.code(),
+        Some(0),
+        "levelplan {}\nstderr: {}",
+        args.join(" "),
+        String::from_utf8_lossy(&o.stderr)
+    );
+    o
 }
 
 pub fn scratch(name: &str) -> PathBuf {
