@@ -1,4 +1,4 @@
-//! Benchmark of a 1001-point detuning scan of the hyperfine demo (Gaussian
+//! Benchmark of a 1001-point detuning scan of the former hyperfine demo (Gaussian
 //! pulses) on 1 and 2 threads, for docs/performance.md. Each iteration is
 //! the library's whole scan: every point parsed, propagated, estimated and
 //! spelt as a CSV row in grid order (into memory; the CLI adds only the
@@ -15,7 +15,7 @@ use levelplan::scan::{run_ordered, thread_pool, Grid};
 use levelplan::scheme::SchemeSource;
 use std::time::Duration;
 
-const DEFAULT_SCHEME: &str = "level_schemes/hyperfine_manifold.yaml";
+const DEFAULT_SCHEME: &str = "tests/fixtures/hyperfine_levels_v1.yaml";
 const DEFAULT_VARY: &str = "fields.probe.tuned.detuning=-50MHz..50MHz:1001";
 
 /// The CSV body of the scan (rows in grid order).

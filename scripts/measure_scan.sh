@@ -19,7 +19,7 @@ for _ in $(seq "$rounds"); do
   line=""
   for jobs in 1 2; do
     s=$(date +%s.%N)
-    "$bin" scan level_schemes/hyperfine_manifold.yaml \
+    "$bin" scan tests/fixtures/hyperfine_levels_v1.yaml \
       --vary fields.probe.tuned.detuning=-400MHz..400MHz:1001 \
       --jobs "$jobs" --out "$out/scan_$jobs.csv"
     e=$(date +%s.%N)

@@ -1,6 +1,6 @@
 #!/usr/bin/env python3
 """What a careful physicist writes in a notebook: a detuning scan of the
-hyperfine-like demo (level_schemes/hyperfine_manifold.yaml, invented numbers)
+five-level hyperfine-like case (tests/fixtures/hyperfine_levels_v1.yaml, invented numbers)
 with scipy's solve_ivp (DOP853), a vectorised right-hand side, at the same
 tolerances as levelplan. Used only to measure levelplan against it
 (docs/performance.md); it is not part of the tool or its tests.

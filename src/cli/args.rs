@@ -8,14 +8,14 @@
 
 use super::help;
 use clap::{Args, Parser, Subcommand, ValueEnum};
-use levelplan::render::Format;
+use levelplan::render::{Format, Sublevels};
 use std::path::PathBuf;
 
 #[derive(Debug, Parser)]
 #[command(
     name = "levelplan",
     version,
-    about = "Plan laser excitation schemes: exact Schrodinger propagation beside first-order estimates, leakage reports for proposals",
+    about = "Plan laser excitation schemes: exact propagation (Schrodinger equation, or the Lindblad master equation for open systems) beside first-order estimates, leakage reports for proposals",
     after_help = help::top()
 )]
 pub struct Cli {
@@ -110,6 +110,22 @@ pub struct ReportOutput {
     /// Colour text output.
     #[arg(long, value_enum, default_value_t = ColorArg::Auto)]
     pub color: ColorArg,
+    /// Text, Markdown and LaTeX: every sublevel a manifold generates on its own row,
+    /// instead of one row per manifold and F (total population, largest sublevel).
+    /// CSV and JSON always list every level.
+    #[arg(long)]
+    pub sublevels: bool,
+}
+
+impl ReportOutput {
+    /// How the readable formats show sublevels.
+    pub fn sublevel_rows(&self) -> Sublevels {
+        if self.sublevels {
+            Sublevels::Each
+        } else {
+            Sublevels::Grouped
+        }
+    }
 }
 
 /// The spectator tolerance option.

@@ -17,8 +17,9 @@ use std::fs;
 pub fn inspect(a: InspectArgs) -> Result<i32, Error> {
     let (model, prov) = load(&a.scheme.scheme)?;
     let report = pipeline::inspect(&model, prov);
+    let rows = a.output.sublevel_rows();
     let sink = Sink::new(a.output.out, a.output.color);
-    let exporter = render::exporter(a.output.format.into(), sink.color());
+    let exporter = render::exporter_with(a.output.format.into(), sink.color(), rows);
     let bytes = render_to_vec(|w| exporter.inspect(&report, w))?;
     sink.emit(&bytes)?;
     Ok(EXIT_OK)
@@ -34,8 +35,9 @@ pub fn vet(a: VetArgs) -> Result<i32, Error> {
     pipeline::check_population("--goal", opts.goal)?;
     let (model, prov) = load(&a.scheme.scheme)?;
     let rep = pipeline::vet(&model, prov, &opts)?;
+    let rows = a.output.sublevel_rows();
     let sink = Sink::new(a.output.out, a.output.color);
-    let exporter = render::exporter(a.output.format.into(), sink.color());
+    let exporter = render::exporter_with(a.output.format.into(), sink.color(), rows);
     let bytes = render_to_vec(|w| exporter.vet(&rep, w))?;
     sink.emit(&bytes)?;
     Ok(pipeline::vet_status(&rep))

@@ -220,7 +220,8 @@ fn non_finite(m: &Model) -> Vec<ModelError> {
     let mut out = Vec::new();
     let mut bad = |at| out.push(ModelError::NonFinite { at });
     for (i, l) in m.levels.iter().enumerate() {
-        if !(l.omega.is_finite() && l.gamma.is_finite() && l.dephasing.is_finite()) {
+        let origin_ok = l.origin.as_ref().is_none_or(|o| o.offset.is_finite());
+        if !(l.omega.is_finite() && l.gamma.is_finite() && l.dephasing.is_finite() && origin_ok) {
             bad(Part::Level(i));
         }
     }
@@ -271,6 +272,14 @@ fn invalid(out: &mut Vec<ModelError>, at: Part, reason: impl Into<String>) {
     });
 }
 
+/// J and F non-negative, m_F one of -F, -F+1, ..., F.
+fn origin_ok(o: &super::LevelOrigin) -> bool {
+    o.two_j >= 0
+        && o.two_f >= 0
+        && o.two_m_f
+            .is_none_or(|m| m.abs() <= o.two_f && (o.two_f - m) % 2 == 0)
+}
+
 /// Everything but finiteness.
 fn invariants(m: &Model, out: &mut Vec<ModelError>) {
     let population = |p: f64| (0.0..=1.0).contains(&p);
@@ -288,6 +297,13 @@ fn invariants(m: &Model, out: &mut Vec<ModelError>) {
         }
         if l.tolerance.is_some_and(|t| !population(t)) {
             invalid(out, Part::Level(i), "a tolerance outside [0, 1]");
+        }
+        if l.origin.as_ref().is_some_and(|o| !origin_ok(o)) {
+            invalid(
+                out,
+                Part::Level(i),
+                "quantum numbers with J, F >= 0 and m_F in -F..F in steps of 1",
+            );
         }
     }
     couplings(m, out);

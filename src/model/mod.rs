@@ -109,6 +109,27 @@ pub struct Level {
     /// Pure dephasing rate gamma (1/s): coherences rho_jk with j or k this
     /// level decay at gamma_j + gamma_k (jump operator sqrt(2 gamma)|k><k|).
     pub dephasing: f64,
+    /// For a level a manifold generated: which manifold and its quantum
+    /// numbers. None for a level written by hand (v1).
+    pub origin: Option<LevelOrigin>,
+}
+
+/// Where a generated level comes from: its manifold, J, F and (for a
+/// Zeeman sublevel) m_F, and its energy relative to the manifold's centre
+/// of gravity. Angular momenta are doubled (`two_f = 3` is F = 3/2).
+#[derive(Debug, Clone, PartialEq)]
+pub struct LevelOrigin {
+    /// The manifold's id in the scheme.
+    pub manifold: String,
+    /// 2 J of the manifold.
+    pub two_j: i32,
+    /// 2 F of the zero-field level the state connects to.
+    pub two_f: i32,
+    /// 2 m_F of a sublevel; None for a whole F level (resolve: hyperfine).
+    pub two_m_f: Option<i32>,
+    /// Energy / hbar relative to the manifold's centre of gravity (rad/s),
+    /// as the structure computed it: the level's `omega` minus the centre.
+    pub offset: f64,
 }
 
 impl Level {
@@ -122,6 +143,7 @@ impl Level {
             tolerance: None,
             decays_to: Vec::new(),
             dephasing: 0.0,
+            origin: None,
         }
     }
 

@@ -200,15 +200,15 @@ solver: {method: adaptive}
     #[test]
     fn a_check_spends_its_steps_times_the_state_size() {
         let m = model();
-        let n = steps(&m);
+        let direct = solve::solve(&m, &SolveOptions::default()).expect("propagation");
+        let n = direct.steps;
         assert!(n > 20, "the pulse takes {n} steps");
         let mut b = Budget {
             per_step: 2.0,
             step_budget: 1_000_000,
             remaining: 1e9,
         };
-        let p = b.final_population(Ok(m.clone()), 1).expect("checked");
-        let direct = solve::solve(&m, &SolveOptions::default()).expect("propagation");
+        let p = b.final_population(Ok(m), 1).expect("checked");
         assert_eq!(p, direct.final_populations[1]);
         assert_eq!(b.remaining, 1e9 - 2.0 * n as f64);
     }

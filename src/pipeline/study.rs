@@ -181,6 +181,20 @@ pub fn row_from_report(coords: &[f64], rep: &VetReport) -> ScanRow {
     }
 }
 
+/// A `--vary` text with the level names of its PATH written as maps
+/// (`initial.mixture.{manifold: S, F: 2, m_F: 2}=...`) spelt as generated
+/// ids, so the CSV, the scan hash and the overrides see one spelling.
+fn spelled_levels(text: &str) -> Result<String, Error> {
+    match text.split_once('=') {
+        Some((path, rest)) if path.contains('{') => {
+            let path = scheme::level_names_in_path(path)
+                .map_err(|e| bad(&format!("--vary '{text}'"), e))?;
+            Ok(format!("{path}={rest}"))
+        }
+        _ => Ok(text.to_string()),
+    }
+}
+
 /// Parse the `--vary` texts and check what needs no scheme (form, COUNT,
 /// positivity of log ranges).
 pub fn parse_specs(
@@ -196,7 +210,7 @@ pub fn parse_specs(
     }
     let specs = texts
         .iter()
-        .map(|t| VarySpec::parse(t, count_required))
+        .map(|t| VarySpec::parse(&spelled_levels(t)?, count_required))
         .collect::<Result<Vec<_>, _>>()?;
     for s in &specs {
         s.spacing(log)?;
@@ -253,17 +267,21 @@ impl TuneRequest {
 
     fn goal(&self, level_ids: &[String]) -> Result<TuneGoal, Error> {
         match &self.maximize {
-            Some(id) => Ok(TuneGoal::Maximize {
-                level: level_ids.iter().position(|l| l == id).ok_or_else(|| {
-                    bad(
-                        "--maximize",
-                        format!(
-                            "no level '{id}' in the scheme (levels: {})",
-                            level_ids.join(", ")
-                        ),
-                    )
-                })?,
-            }),
+            Some(written) => {
+                // A generated level may be written as a map.
+                let id = &scheme::level_names_in_path(written).map_err(|e| bad("--maximize", e))?;
+                Ok(TuneGoal::Maximize {
+                    level: level_ids.iter().position(|l| l == id).ok_or_else(|| {
+                        bad(
+                            "--maximize",
+                            format!(
+                                "no level '{id}' in the scheme (levels: {})",
+                                level_ids.join(", ")
+                            ),
+                        )
+                    })?,
+                })
+            }
             None if self.shortest => Ok(TuneGoal::Shortest { goal: self.goal }),
             None => Err(bad("tune", "give --maximize LEVEL or --shortest")),
         }

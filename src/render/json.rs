@@ -218,4 +218,36 @@ mod tests {
         assert_eq!(v["levels"][1]["lifetime_s"], 26e-9);
         assert_eq!(v["title"], Value::Null);
     }
+
+    #[test]
+    fn generated_levels_add_their_quantum_numbers_as_numbers() {
+        let (t, v) = json(&sample::vet_report_with_sublevels());
+        let g = &v["levels"][0];
+        assert!(
+            g.get("manifold").is_none() && g.get("J").is_none(),
+            "v1: no keys"
+        );
+        let s = &v["levels"][1];
+        assert_eq!(
+            &keys(s)[..6],
+            ["id", "manifold", "J", "F", "m_F", "role"],
+            "after the id"
+        );
+        assert!(
+            t.contains("\"id\": \"P_F1_m-1\",\n      \"manifold\": \"P\",\n      \"J\": 1.5,\n      \"F\": 1,\n      \"m_F\": -1,\n"),
+            "{t}"
+        );
+        assert_eq!(v["levels"][4]["m_F"], 0);
+        let (t, v) = json(&sample::inspect_report_with_sublevels());
+        assert_eq!(
+            &keys(&v["levels"][2])[..6],
+            ["id", "manifold", "J", "F", "m_F", "energy_hz"]
+        );
+        assert!(t.contains("\"J\": 0.5,"), "{t}");
+        assert!(
+            !t.contains("offset") && !t.contains("centre"),
+            "the text-only numbers stay out"
+        );
+        assert!(v["levels"][0].get("manifold").is_none());
+    }
 }

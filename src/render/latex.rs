@@ -65,12 +65,12 @@ pub fn write(doc: &Doc, w: &mut dyn Write) -> io::Result<()> {
 
 #[cfg(test)]
 mod tests {
-    use crate::render::doc::{inspect_doc, vet_doc, SAFETY_TEXT};
+    use crate::render::doc::{inspect_doc, vet_doc, Sublevels, SAFETY_TEXT};
     use crate::report::sample;
 
     fn vet_latex() -> String {
         let mut b = Vec::new();
-        super::write(&vet_doc(&sample::vet_report()), &mut b).unwrap();
+        super::write(&vet_doc(&sample::vet_report(), Sublevels::Grouped), &mut b).unwrap();
         String::from_utf8(b).unwrap()
     }
 
@@ -116,7 +116,11 @@ mod tests {
     #[test]
     fn inspect_typesets_units_in_math_mode() {
         let mut b = Vec::new();
-        super::write(&inspect_doc(&sample::inspect_report()), &mut b).unwrap();
+        super::write(
+            &inspect_doc(&sample::inspect_report(), Sublevels::Grouped),
+            &mut b,
+        )
+        .unwrap();
         let t = String::from_utf8(b).unwrap();
         assert!(
             t.contains(
@@ -126,5 +130,42 @@ mod tests {
         );
         assert!(t.contains(" & 1.000~W/cm$^2$ & "), "{t}");
         assert!(t.ends_with(&format!("{SAFETY_TEXT}\\par\n")), "{t}");
+    }
+
+    #[test]
+    fn grouped_sublevels_are_one_row_each_f_level() {
+        let r = sample::vet_report_with_sublevels();
+        let render = |mode| {
+            let mut b = Vec::new();
+            super::write(&vet_doc(&r, mode), &mut b).unwrap();
+            String::from_utf8(b).unwrap()
+        };
+        let t = render(Sublevels::Grouped);
+        assert!(t.contains("  \\begin{tabular}{llrlrrlrrl}\n"), "{t}");
+        assert!(t.contains(
+            "    P\\_F1 (3 sublevels) & spectator & \\textbf{0.0026} & P\\_F1\\_m0 0.0020 & -- & 0.0045 & 2nd & -- & 0.0010 & \\textbf{LEAK (1 of 3)} \\\\\n"
+        ), "{t}");
+        assert!(t.contains(
+            "    P\\_F0\\_m0 & spectator & $3.00\\times10^{-4}$ & -- & $6.00\\times10^{-4}$ & 0.0015 & 2nd & 0.200 & 0.0010 & ok \\\\\n"
+        ));
+        let each = render(Sublevels::Each);
+        assert!(each.contains(
+            "    P\\_F1\\_m-1 & spectator & $1.00\\times10^{-4}$ & $2.00\\times10^{-4}$ & 0.0015 & 2nd & 0.0667 & 0.0010 & ok \\\\\n"
+        ), "{each}");
+        assert!(!each.contains("sublevels)"));
+    }
+
+    #[test]
+    fn inspect_sublevel_energies_from_the_centre() {
+        let mut b = Vec::new();
+        let r = sample::inspect_report_with_sublevels();
+        super::write(&inspect_doc(&r, Sublevels::Grouped), &mut b).unwrap();
+        let t = String::from_utf8(b).unwrap();
+        assert!(t.contains(
+            "    S\\_F1 (3 sublevels) & ground & -- & +2562.006 to +2564.006~MHz from S centre & -- & initial & 1.0000 & S\\_F1\\_m0 0.5000 \\\\\n"
+        ), "{t}");
+        assert!(t.contains(
+            "    S\\_F0\\_m0 & ground & -- & $-$4271.677~MHz from S centre & -- & spectator & -- & -- \\\\\n"
+        ), "{t}");
     }
 }

@@ -16,6 +16,8 @@ pub mod scan;
 pub mod scan_plot;
 pub mod text;
 
+pub use doc::Sublevels;
+
 use crate::report::{InspectReport, VetReport};
 use std::io::{self, Write};
 
@@ -37,36 +39,41 @@ pub trait Exporter {
 
 struct TextExporter {
     color: bool,
+    sublevels: Sublevels,
 }
-struct MarkdownExporter;
-struct LatexExporter;
+struct MarkdownExporter {
+    sublevels: Sublevels,
+}
+struct LatexExporter {
+    sublevels: Sublevels,
+}
 struct CsvExporter;
 struct JsonExporter;
 
 impl Exporter for TextExporter {
     fn vet(&self, r: &VetReport, w: &mut dyn Write) -> io::Result<()> {
-        text::write(&doc::vet_doc(r), self.color, w)
+        text::write(&doc::vet_doc(r, self.sublevels), self.color, w)
     }
     fn inspect(&self, r: &InspectReport, w: &mut dyn Write) -> io::Result<()> {
-        text::write(&doc::inspect_doc(r), self.color, w)
+        text::write(&doc::inspect_doc(r, self.sublevels), self.color, w)
     }
 }
 
 impl Exporter for MarkdownExporter {
     fn vet(&self, r: &VetReport, w: &mut dyn Write) -> io::Result<()> {
-        markdown::write(&doc::vet_doc(r), w)
+        markdown::write(&doc::vet_doc(r, self.sublevels), w)
     }
     fn inspect(&self, r: &InspectReport, w: &mut dyn Write) -> io::Result<()> {
-        markdown::write(&doc::inspect_doc(r), w)
+        markdown::write(&doc::inspect_doc(r, self.sublevels), w)
     }
 }
 
 impl Exporter for LatexExporter {
     fn vet(&self, r: &VetReport, w: &mut dyn Write) -> io::Result<()> {
-        latex::write(&doc::vet_doc(r), w)
+        latex::write(&doc::vet_doc(r, self.sublevels), w)
     }
     fn inspect(&self, r: &InspectReport, w: &mut dyn Write) -> io::Result<()> {
-        latex::write(&doc::inspect_doc(r), w)
+        latex::write(&doc::inspect_doc(r, self.sublevels), w)
     }
 }
 
@@ -88,12 +95,20 @@ impl Exporter for JsonExporter {
     }
 }
 
-/// The exporter of a format; `color` only affects text.
+/// The exporter of a format; `color` only affects text. Sublevels are
+/// grouped by manifold and F in text, Markdown and LaTeX
+/// ([`exporter_with`] shows each).
 pub fn exporter(format: Format, color: bool) -> Box<dyn Exporter> {
+    exporter_with(format, color, Sublevels::Grouped)
+}
+
+/// The exporter of a format; `color` only affects text, `sublevels` only
+/// text, Markdown and LaTeX (CSV and JSON list every level).
+pub fn exporter_with(format: Format, color: bool, sublevels: Sublevels) -> Box<dyn Exporter> {
     match format {
-        Format::Text => Box::new(TextExporter { color }),
-        Format::Markdown => Box::new(MarkdownExporter),
-        Format::Latex => Box::new(LatexExporter),
+        Format::Text => Box::new(TextExporter { color, sublevels }),
+        Format::Markdown => Box::new(MarkdownExporter { sublevels }),
+        Format::Latex => Box::new(LatexExporter { sublevels }),
         Format::Csv => Box::new(CsvExporter),
         Format::Json => Box::new(JsonExporter),
     }

@@ -115,6 +115,23 @@ pub fn frequency(hz: f64, signed: bool) -> Num {
     n
 }
 
+/// An energy / h relative to a manifold's centre (Hz), in MHz with a sign:
+/// 3 decimals (1 kHz) from 1 MHz up, 4 significant figures below, never
+/// finer than 1 Hz (`+2563.006 MHz`, `-0.7001 MHz`).
+pub fn offset_mhz(hz: f64) -> Num {
+    let mhz = hz / 1e6;
+    let decimals = if mhz == 0.0 {
+        3
+    } else {
+        (3 - mhz.abs().log10().floor() as i32).clamp(3, 6) as usize
+    };
+    let mut n = Num::new(format!("{mhz:.decimals$}"), None, "MHz");
+    if mhz > 0.0 {
+        n.mantissa.insert(0, '+');
+    }
+    n
+}
+
 /// A time (s) in fs, ps, ns, us, ms or s, 4 significant figures.
 pub fn time(s: f64) -> Num {
     let a = s.abs();
@@ -189,6 +206,17 @@ mod tests {
         assert_eq!(frequency(-20e6, true).plain(), "-20.00 MHz");
         assert_eq!(frequency(6.834682e9, false).plain(), "6.835 GHz");
         assert_eq!(frequency(384.23e12, false).plain(), "384.2 THz");
+    }
+
+    #[test]
+    fn centre_offsets_keep_kilohertz() {
+        assert_eq!(offset_mhz(2563.0059e6).plain(), "+2563.006 MHz");
+        assert_eq!(offset_mhz(-4271.6766e6).plain(), "-4271.677 MHz");
+        assert_eq!(offset_mhz(-0.70012e6).plain(), "-0.7001 MHz");
+        assert_eq!(offset_mhz(1.4e3).plain(), "+0.001400 MHz");
+        assert_eq!(offset_mhz(0.2).plain(), "+0.000000 MHz");
+        assert_eq!(offset_mhz(0.0).plain(), "0.000 MHz");
+        assert_eq!(offset_mhz(-2.5e6).latex(), "$-$2.500~MHz");
     }
 
     #[test]

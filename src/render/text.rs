@@ -74,12 +74,17 @@ pub fn write(doc: &Doc, color: bool, w: &mut dyn Write) -> io::Result<()> {
 
 #[cfg(test)]
 mod tests {
-    use crate::render::doc::{inspect_doc, vet_doc, SAFETY_TEXT};
+    use crate::render::doc::{inspect_doc, vet_doc, Sublevels, SAFETY_TEXT};
     use crate::report::sample;
 
     fn vet_text(color: bool) -> String {
         let mut b = Vec::new();
-        super::write(&vet_doc(&sample::vet_report()), color, &mut b).unwrap();
+        super::write(
+            &vet_doc(&sample::vet_report(), Sublevels::Grouped),
+            color,
+            &mut b,
+        )
+        .unwrap();
         String::from_utf8(b).unwrap()
     }
 
@@ -140,7 +145,12 @@ mod tests {
     #[test]
     fn inspect_lists_levels_and_drives() {
         let mut b = Vec::new();
-        super::write(&inspect_doc(&sample::inspect_report()), false, &mut b).unwrap();
+        super::write(
+            &inspect_doc(&sample::inspect_report(), Sublevels::Grouped),
+            false,
+            &mut b,
+        )
+        .unwrap();
         let t = String::from_utf8(b).unwrap();
         let lines: Vec<&str> = t.lines().collect();
         assert_eq!(lines[0], "Scheme");
@@ -153,5 +163,100 @@ mod tests {
             lines.last().copied(),
             Some(format!("  {SAFETY_TEXT}").as_str())
         );
+    }
+
+    fn squashed(t: &str) -> Vec<String> {
+        t.lines()
+            .map(|l| l.split_whitespace().collect::<Vec<_>>().join(" "))
+            .collect()
+    }
+
+    fn text_of(doc: &crate::render::doc::Doc, color: bool) -> String {
+        let mut b = Vec::new();
+        super::write(doc, color, &mut b).unwrap();
+        String::from_utf8(b).unwrap()
+    }
+
+    #[test]
+    fn vet_groups_sublevels_by_manifold_and_f() {
+        let r = sample::vet_report_with_sublevels();
+        let t = text_of(&vet_doc(&r, Sublevels::Grouped), false);
+        let lines = squashed(&t);
+        let head = lines
+            .iter()
+            .position(|l| l == "Populations at the end of the window")
+            .unwrap();
+        assert_eq!(
+            &lines[head + 1..head + 6],
+            [
+                "level role final largest sublevel peak estimate order final/est tolerance status",
+                "------------------ --------- ------- ---------------- ------- -------- ----- --------- --------- -------------",
+                "g initial 0.5000 - 1.0000 - - - -",
+                "P_F1 (3 sublevels) spectator 0.0026 P_F1_m0 0.0020 - 0.0045 2nd - 0.0010 LEAK (1 of 3)",
+                "P_F0_m0 spectator 3.00e-4 - 6.00e-4 0.0015 2nd 0.200 0.0010 ok",
+            ]
+        );
+        assert!(lines[head + 6].starts_with("final and peak"), "three rows");
+        assert!(t.contains("grouped rows (P_F1 (3 sublevels), ...): final and estimate summed"));
+        assert!(
+            lines
+                .iter()
+                .any(|l| l.starts_with("P_F1_m0 probe, \"A\" e")),
+            "the leak table keeps the sublevel"
+        );
+        let c = text_of(&vet_doc(&r, Sublevels::Grouped), true);
+        let row = c.lines().find(|l| l.contains("(3 sublevels)")).unwrap();
+        assert!(row.contains("\x1b[1;31m 0.0026\x1b[0m"), "{row:?}");
+        assert!(row.contains("\x1b[1;31mLEAK (1 of 3)\x1b[0m"), "{row:?}");
+    }
+
+    #[test]
+    fn vet_shows_each_sublevel_when_asked() {
+        let r = sample::vet_report_with_sublevels();
+        let t = text_of(&vet_doc(&r, Sublevels::Each), false);
+        let lines = squashed(&t);
+        let head = lines
+            .iter()
+            .position(|l| l == "Populations at the end of the window")
+            .unwrap();
+        assert_eq!(
+            lines[head + 1],
+            "level role final peak estimate order final/est tolerance status"
+        );
+        assert_eq!(
+            &lines[head + 4..head + 7],
+            [
+                "P_F1_m-1 spectator 1.00e-4 2.00e-4 0.0015 2nd 0.0667 0.0010 ok",
+                "P_F1_m0 spectator 0.0020 0.0040 0.0015 2nd 1.33 0.0010 LEAK",
+                "P_F1_m+1 spectator 5.00e-4 0.0010 0.0015 2nd 0.333 0.0010 ok",
+            ]
+        );
+        assert!(!t.contains("sublevels)"), "no group row, no group note");
+    }
+
+    #[test]
+    fn inspect_gives_generated_energies_from_the_manifold_centre() {
+        let r = sample::inspect_report_with_sublevels();
+        let lines = squashed(&text_of(&inspect_doc(&r, Sublevels::Grouped), false));
+        let at = |heading: &str| lines.iter().position(|l| l == heading).unwrap();
+        let m = at("Manifolds (centres of gravity)");
+        assert_eq!(lines[m + 1], "manifold J energy energy/h levels");
+        assert_eq!(lines[m + 3], "S 1/2 0.0333564095 cm^-1 1.000 GHz 4");
+        let l = at("Levels");
+        assert_eq!(
+            &lines[l + 1..l + 6],
+            [
+                "level label energy energy/h lifetime role initial largest sublevel",
+                "------------------ ------ ---------------- ---------------------------------------- -------- --------- ------- ----------------",
+                "aux 12808.8000 cm^-1 384.0 THz 26.00 ns spectator - -",
+                "S_F1 (3 sublevels) ground - +2562.006 to +2564.006 MHz from S centre - initial 1.0000 S_F1_m0 0.5000",
+                "S_F0_m0 ground - -4271.677 MHz from S centre - spectator - -",
+            ]
+        );
+        let each = squashed(&text_of(&inspect_doc(&r, Sublevels::Each), false));
+        assert!(
+            each.contains(&"S_F1_m0 ground - +2563.006 MHz from S centre - initial 0.5000".into())
+        );
+        assert!(!each.iter().any(|l| l.contains("largest sublevel")));
     }
 }

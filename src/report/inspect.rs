@@ -7,7 +7,7 @@
 
 use super::json_units;
 use super::safety::{safety_notes, SafetyNote};
-use super::{roles, Provenance, Role};
+use super::{roles, Provenance, QuantumNumbers, Role};
 use crate::model::{Dipole, InitialKind, Model};
 use crate::units::C;
 use serde::Serialize;
@@ -19,6 +19,9 @@ use serde::Serialize;
 #[non_exhaustive]
 pub struct InspectLevel {
     pub id: String,
+    /// `manifold`, `J`, `F`, `m_F` of a generated level; no keys for a v1 level.
+    #[serde(flatten)]
+    pub quantum: Option<QuantumNumbers>,
     /// Energy / h, Hz (cyclic).
     pub energy_hz: f64,
     /// Energy in cm^-1.
@@ -30,6 +33,26 @@ pub struct InspectLevel {
     pub role: Role,
     pub initial_population: f64,
     pub tolerance: f64,
+    /// Energy / h relative to the centre of gravity of the level's
+    /// manifold (Hz), for a generated level; the text formats show it
+    /// instead of the absolute energy. Not in the JSON (`energy_hz` is).
+    #[serde(skip)]
+    pub centre_offset_hz: Option<f64>,
+}
+
+/// The centre of gravity of one manifold, for the text formats (not in
+/// the JSON: each generated level carries its absolute `energy_hz`).
+#[derive(Debug, Clone, PartialEq)]
+#[non_exhaustive]
+pub struct ManifoldCentre {
+    pub id: String,
+    pub j: f64,
+    /// Energy / h of the centre (Hz).
+    pub energy_hz: f64,
+    /// The same in cm^-1.
+    pub energy_cm: f64,
+    /// How many levels the manifold generated.
+    pub levels: usize,
 }
 
 /// One drive of the inspect report.
@@ -114,6 +137,10 @@ pub struct InspectReport {
     pub initial_kind: InitialKind,
     #[serde(skip)]
     pub initial_levels: usize,
+    /// The manifolds' centres, in the order their levels come. Not in the
+    /// JSON.
+    #[serde(skip)]
+    pub manifolds: Vec<ManifoldCentre>,
 }
 
 const TWO_PI: f64 = 2.0 * std::f64::consts::PI;
@@ -129,6 +156,8 @@ pub fn inspect(model: &Model, provenance: Provenance) -> InspectReport {
             let hz = l.omega / TWO_PI;
             InspectLevel {
                 id: l.id.clone(),
+                quantum: QuantumNumbers::of(l),
+                centre_offset_hz: l.origin.as_ref().map(|o| o.offset / TWO_PI),
                 label: l.label.clone(),
                 energy_hz: hz,
                 energy_cm: hz / C / 100.0,
@@ -188,5 +217,28 @@ pub fn inspect(model: &Model, provenance: Provenance) -> InspectReport {
         safety: safety_notes(model),
         initial_kind: model.initial_kind(),
         initial_levels: model.initial().iter().filter(|p| **p > 0.0).count(),
+        manifolds: manifold_centres(model),
     }
+}
+
+/// Each manifold's centre once, from its levels (energy minus the offset
+/// the structure gave it).
+fn manifold_centres(model: &Model) -> Vec<ManifoldCentre> {
+    let mut out: Vec<ManifoldCentre> = Vec::new();
+    for l in &model.levels {
+        let Some(o) = &l.origin else { continue };
+        if let Some(m) = out.iter_mut().find(|m| m.id == o.manifold) {
+            m.levels += 1;
+            continue;
+        }
+        let hz = (l.omega - o.offset) / TWO_PI;
+        out.push(ManifoldCentre {
+            id: o.manifold.clone(),
+            j: f64::from(o.two_j) / 2.0,
+            energy_hz: hz,
+            energy_cm: hz / C / 100.0,
+            levels: 1,
+        });
+    }
+    out
 }

@@ -50,6 +50,25 @@ pub(super) fn w_per_cm2_opt<S: Serializer>(i: &Option<f64>, s: S) -> Result<S::O
     i.map(|i| i * 1e-4).serialize(s)
 }
 
+/// An angular momentum quantum number (J, F, m_F): a whole number as a
+/// JSON integer (`2`, `-1`), a half-integer as a number with its fraction
+/// (`1.5`). No unit: the value is written as it is.
+pub(super) fn half<S: Serializer>(x: &f64, s: S) -> Result<S::Ok, S::Error> {
+    if x.fract() == 0.0 && x.abs() < 1e9 {
+        s.serialize_i64(*x as i64)
+    } else {
+        s.serialize_f64(*x)
+    }
+}
+
+/// [`half`] of a value that may be absent (the key is then skipped).
+pub(super) fn half_opt<S: Serializer>(x: &Option<f64>, s: S) -> Result<S::Ok, S::Error> {
+    match x {
+        Some(x) => half(x, s),
+        None => s.serialize_none(),
+    }
+}
+
 /// The estimate order as a word: `initial`, `none`, `first`, `second`.
 pub(super) fn order<S: Serializer>(o: &Order, s: S) -> Result<S::Ok, S::Error> {
     s.serialize_str(order_word(*o))
@@ -121,6 +140,12 @@ mod tests {
         g: Order,
         #[serde(serialize_with = "method")]
         h: MethodUsed,
+        #[serde(serialize_with = "half")]
+        i: f64,
+        #[serde(serialize_with = "half")]
+        j: f64,
+        #[serde(serialize_with = "half_opt")]
+        k: Option<f64>,
     }
 
     #[test]
@@ -134,6 +159,9 @@ mod tests {
             f: None,
             g: Order::Unreached,
             h: MethodUsed::Adaptive,
+            i: 1.5,
+            j: -2.0,
+            k: Some(-0.5),
         };
         let v = serde_json::to_value(&u).unwrap();
         assert_eq!(v["a"], 3.0);
@@ -144,6 +172,8 @@ mod tests {
         assert!(v["f"].is_null());
         assert_eq!(v["g"], "none");
         assert_eq!(v["h"], "adaptive");
+        let t = serde_json::to_string(&u).unwrap();
+        assert!(t.contains("\"i\":1.5,\"j\":-2,\"k\":-0.5"), "{t}");
     }
 
     #[test]

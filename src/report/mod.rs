@@ -23,7 +23,9 @@ mod safety;
 pub(crate) mod sample;
 mod vet;
 
-pub use inspect::{inspect, InspectDrive, InspectField, InspectLevel, InspectReport};
+pub use inspect::{
+    inspect, InspectDrive, InspectField, InspectLevel, InspectReport, ManifoldCentre,
+};
 pub use provenance::{Provenance, SolverFacts};
 pub use safety::{safety_notes, SafetyNote, SAFETY_INTENSITY};
 pub use vet::{
@@ -31,8 +33,53 @@ pub use vet::{
     UncheckedRemedy, VetReport, NEGLIGIBLE, UNRELIABLE_ABOVE, UNRELIABLE_FACTOR,
 };
 
-use crate::model::Model;
+use crate::model::{Level, Model};
 use serde::Serialize;
+
+/// The quantum numbers of a level a manifold generated, as its JSON keys
+/// carry them: `manifold`, `J`, `F` and, for a Zeeman sublevel, `m_F`
+/// (whole numbers as integers, half-integers as 1.5). A report row holds
+/// `None` for a level written by hand, and then has none of these keys.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+#[non_exhaustive]
+pub struct QuantumNumbers {
+    pub manifold: String,
+    #[serde(rename = "J", serialize_with = "json_units::half")]
+    pub j: f64,
+    #[serde(rename = "F", serialize_with = "json_units::half")]
+    pub f: f64,
+    /// None for a whole F level (`resolve: hyperfine`): no key then.
+    #[serde(
+        rename = "m_F",
+        serialize_with = "json_units::half_opt",
+        skip_serializing_if = "Option::is_none"
+    )]
+    pub m_f: Option<f64>,
+}
+
+impl QuantumNumbers {
+    /// The quantum numbers of a generated level; None for a v1 level.
+    pub fn of(level: &Level) -> Option<QuantumNumbers> {
+        let o = level.origin.as_ref()?;
+        let half = |two: i32| f64::from(two) / 2.0;
+        Some(QuantumNumbers {
+            manifold: o.manifold.clone(),
+            j: half(o.two_j),
+            f: half(o.two_f),
+            m_f: o.two_m_f.map(half),
+        })
+    }
+
+    /// A hand-made set (for callers that build report rows in tests).
+    pub fn new(manifold: &str, j: f64, f: f64, m_f: Option<f64>) -> QuantumNumbers {
+        QuantumNumbers {
+            manifold: manifold.to_string(),
+            j,
+            f,
+            m_f,
+        }
+    }
+}
 
 /// Role of a level in the scheme. Serialised as [`Role::as_str`].
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]

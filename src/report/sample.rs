@@ -34,6 +34,7 @@ fn source(field: &str, from: &str, detuning_mhz: f64, order: Order, population: 
 pub(crate) fn vet_report() -> VetReport {
     let g = LevelRow {
         id: "g".into(),
+        quantum: None,
         role: Role::Initial,
         final_population: 0.5,
         peak_population: 1.0,
@@ -160,6 +161,8 @@ pub(crate) fn inspect_report() -> InspectReport {
         levels: vec![
             InspectLevel {
                 id: "g".into(),
+                quantum: None,
+                centre_offset_hz: None,
                 energy_hz: 0.0,
                 energy_cm: 0.0,
                 label: Some("ground".into()),
@@ -170,6 +173,8 @@ pub(crate) fn inspect_report() -> InspectReport {
             },
             InspectLevel {
                 id: "e".into(),
+                quantum: None,
+                centre_offset_hz: None,
                 energy_hz: 384e12,
                 energy_cm: 12808.8,
                 label: None,
@@ -212,5 +217,86 @@ pub(crate) fn inspect_report() -> InspectReport {
         }],
         initial_kind: crate::model::InitialKind::Coherent,
         initial_levels: 1,
+        manifolds: Vec::new(),
     }
+}
+
+/// A generated level's row cloned from `like`: id, quantum numbers of
+/// manifold P (J = 3/2), final population (peak twice it), flag.
+fn sublevel_row(like: &LevelRow, id: &str, f: f64, m_f: f64, fin: f64, flagged: bool) -> LevelRow {
+    LevelRow {
+        id: id.into(),
+        quantum: Some(QuantumNumbers::new("P", 1.5, f, Some(m_f))),
+        final_population: fin,
+        peak_population: 2.0 * fin,
+        ratio: Some(fin / 1.5e-3),
+        flagged,
+        remedy: None,
+        ..like.clone()
+    }
+}
+
+/// A vet report with generated sublevels: the v1 initial level g, the
+/// three sublevels of P F=1 (m_F = 0 leaks, 2.0e-3 of a total 2.6e-3) and
+/// the lone sublevel P_F0_m0, each a second-order spectator like `s` of
+/// [`vet_report`].
+pub(crate) fn vet_report_with_sublevels() -> VetReport {
+    let mut r = vet_report();
+    let (g, s) = (r.levels[0].clone(), r.levels[2].clone());
+    r.levels = vec![
+        g,
+        sublevel_row(&s, "P_F1_m-1", 1.0, -1.0, 1e-4, false),
+        sublevel_row(&s, "P_F1_m0", 1.0, 0.0, 2e-3, true),
+        sublevel_row(&s, "P_F1_m+1", 1.0, 1.0, 5e-4, false),
+        sublevel_row(&s, "P_F0_m0", 0.0, 0.0, 3e-4, false),
+    ];
+    r.flagged = 1;
+    r
+}
+
+/// An inspect report with generated sublevels: the v1 level aux, the
+/// three sublevels of S F=1 (initial mixture 0.2, 0.5, 0.3) 1 MHz apart
+/// around +2563.006 MHz from the centre of S (J = 1/2), and the lone
+/// sublevel S_F0_m0 at -4271.677 MHz.
+pub(crate) fn inspect_report_with_sublevels() -> InspectReport {
+    let mut r = inspect_report();
+    let aux = InspectLevel {
+        id: "aux".into(),
+        role: Role::Spectator,
+        initial_population: 0.0,
+        ..r.levels[1].clone()
+    };
+    let sub = |id: &str, f: f64, m_f: f64, offset_hz: f64, p: f64| InspectLevel {
+        id: id.into(),
+        quantum: Some(QuantumNumbers::new("S", 0.5, f, Some(m_f))),
+        centre_offset_hz: Some(offset_hz),
+        energy_hz: 1e9 + offset_hz,
+        energy_cm: (1e9 + offset_hz) / crate::units::C / 100.0,
+        label: Some("ground".into()),
+        lifetime: None,
+        role: if p > 0.0 {
+            Role::Initial
+        } else {
+            Role::Spectator
+        },
+        initial_population: p,
+        tolerance: 1e-3,
+    };
+    r.levels = vec![
+        aux,
+        sub("S_F1_m-1", 1.0, -1.0, 2562.006e6, 0.2),
+        sub("S_F1_m0", 1.0, 0.0, 2563.006e6, 0.5),
+        sub("S_F1_m+1", 1.0, 1.0, 2564.006e6, 0.3),
+        sub("S_F0_m0", 0.0, 0.0, -4271.677e6, 0.0),
+    ];
+    r.manifolds = vec![ManifoldCentre {
+        id: "S".into(),
+        j: 0.5,
+        energy_hz: 1e9,
+        energy_cm: 1e9 / crate::units::C / 100.0,
+        levels: 4,
+    }];
+    r.initial_kind = crate::model::InitialKind::Mixture;
+    r.initial_levels = 3;
+    r
 }

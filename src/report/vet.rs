@@ -8,7 +8,7 @@
 
 use super::json_units;
 use super::safety::{safety_notes, SafetyNote};
-use super::{roles, Provenance, Role, SolverFacts};
+use super::{roles, Provenance, QuantumNumbers, Role, SolverFacts};
 use crate::estimate::{self, Estimate, EstimateError, Order};
 use crate::model::{Dynamics, InitialKind, Model, Readout};
 use crate::solve::Solution;
@@ -177,6 +177,9 @@ impl UncheckedRemedy {
 #[non_exhaustive]
 pub struct LevelRow {
     pub id: String,
+    /// `manifold`, `J`, `F`, `m_F` of a generated level; no keys for a v1 level.
+    #[serde(flatten)]
+    pub quantum: Option<QuantumNumbers>,
     pub role: Role,
     pub final_population: f64,
     pub peak_population: f64,
@@ -475,6 +478,7 @@ pub fn vet(
         }
         levels.push(LevelRow {
             id: level.id.clone(),
+            quantum: QuantumNumbers::of(level),
             label: level.label.clone(),
             role,
             final_population: fin,

@@ -91,7 +91,7 @@ impl<'a> Locator<'a> {
                 (Seg::Key(k), NodeKind::Map(entries)) => {
                     match entries
                         .iter()
-                        .filter(|(key, _)| key.scalar_text() == Some(k.as_str()))
+                        .filter(|(key, _)| key_matches(key, k))
                         .nth(occ)
                     {
                         Some((key, value)) => (key, value),
@@ -109,6 +109,40 @@ impl<'a> Locator<'a> {
         }
         found
     }
+}
+
+/// Whether a key node is the key `k` of a path: the same text, or a level
+/// name written as a map (`{ manifold: S, F: 2, m_F: 2 }`) whose text form
+/// (`scheme::raw::level_name_text`) is `k`, numbers compared by value.
+fn key_matches(key: &Node, k: &str) -> bool {
+    if let Some(text) = key.scalar_text() {
+        return text == k;
+    }
+    let (NodeKind::Map(entries), Some(inner)) = (
+        &key.kind,
+        k.strip_prefix('{').and_then(|t| t.strip_suffix('}')),
+    ) else {
+        return false;
+    };
+    let wanted: Vec<(&str, &str)> = inner
+        .split(", ")
+        .filter_map(|p| p.split_once(": "))
+        .collect();
+    let number = |t: &str| match t.trim().split_once('/') {
+        Some((n, d)) => Some(n.trim().parse::<f64>().ok()? / d.trim().parse::<f64>().ok()?),
+        None => t.trim().parse::<f64>().ok(),
+    };
+    wanted.len() == entries.len()
+        && entries.iter().all(|(ek, ev)| {
+            let (Some(ek), Some(ev)) = (ek.scalar_text(), ev.scalar_text()) else {
+                return false;
+            };
+            wanted.iter().any(|(wk, wv)| {
+                *wk == ek
+                    && (*wv == ev
+                        || (ek != "manifold" && number(wv).is_some() && number(wv) == number(ev)))
+            })
+        })
 }
 
 #[cfg(test)]
@@ -175,6 +209,23 @@ fields:
             Some((16, 5))
         );
         assert_eq!(l.locate(&p(&["nothing"])), None);
+    }
+
+    #[test]
+    fn finds_level_names_written_as_maps() {
+        let t =
+            "initial:\n  mixture:\n    S_F1_m0: 0.5\n    { manifold: S, F: 1, m_F: +1.0 }: 0.5\n";
+        let l = Locator::new(t);
+        let k = KeyPath::root()
+            .k("initial")
+            .k("mixture")
+            .k("{manifold: S, F: 1, m_F: 1}");
+        assert_eq!(l.locate(&k), Some((4, 5)));
+        let other = KeyPath::root()
+            .k("initial")
+            .k("mixture")
+            .k("{manifold: S, F: 1, m_F: 0}");
+        assert_eq!(l.locate(&other), Some((2, 3)));
     }
 
     #[test]

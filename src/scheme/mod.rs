@@ -13,17 +13,20 @@
 //! The format itself is documented in `docs/scheme-format.md`.
 
 pub mod locate;
+mod overrides;
 pub mod raw;
 mod source;
 mod validate;
 
 use crate::model::Model;
 use crate::yaml::{self, YamlError, YamlErrorKind};
-use locate::{KeyPath, Locator};
+use locate::Locator;
 use raw::RawScheme;
-use serde_json::{Map, Value};
+use serde_json::Value;
 use std::fmt;
 
+use overrides::apply_override;
+pub use overrides::{level_names_in_path, numeric_value_at};
 pub use source::{from_bytes, source_from_bytes, unreadable, READ_LIMIT};
 pub use validate::valid_id;
 
@@ -269,250 +272,6 @@ fn validate_raw(
     }
 }
 
-/// The value at a key path as written: the number and its unit (empty for
-/// a bare number; "pi" for "0.5 pi"). For headers of scans.
-pub fn numeric_value_at(
-    text: &str,
-    file_name: &str,
-    path: &str,
-) -> Result<(f64, String), SchemeError> {
-    let value = raw_value(&read_raw(text, file_name)?, file_name)?;
-    let fail = |kp: &KeyPath, expected: String, found: String| {
-        let pos = Locator::new(text).locate(kp);
-        SchemeError::one(
-            file_name,
-            Diagnostic {
-                line: pos.map(|p| p.0),
-                column: pos.map(|p| p.1),
-                path: path.to_string(),
-                expected,
-                found,
-            },
-        )
-    };
-    let segs = split_path(path).map_err(|e| fail(&KeyPath::root(), e.0, e.1))?;
-    let (node, kp) = match walk(&value, &segs) {
-        Ok(x) => x,
-        Err((kp, exp, found)) => return Err(fail(&kp, exp, found)),
-    };
-    match numeric_of(node) {
-        Some(x) => Ok(x),
-        None => Err(fail(
-            &kp,
-            "a path to a numeric value".into(),
-            format!("{} (not a number)", describe(node)),
-        )),
-    }
-}
-
-/// Split "a.b[2].c" / "a.b.2.c" into segments (indices stay text until the
-/// node they index is known).
-fn split_path(path: &str) -> Result<Vec<String>, (String, String)> {
-    let mut out = Vec::new();
-    for part in path.split('.') {
-        let mut rest = part;
-        // key[1][2]
-        let key_end = rest.find('[').unwrap_or(rest.len());
-        if key_end > 0 {
-            out.push(rest[..key_end].to_string());
-        }
-        rest = &rest[key_end..];
-        while let Some(r) = rest.strip_prefix('[') {
-            let Some(close) = r.find(']') else {
-                return Err((
-                    "a key path like fields.probe.tuned.detuning".into(),
-                    format!("'{path}'"),
-                ));
-            };
-            out.push(r[..close].to_string());
-            rest = &r[close + 1..];
-        }
-        if !rest.is_empty() || (key_end == 0 && part.is_empty()) {
-            return Err((
-                "a key path like fields.probe.tuned.detuning".into(),
-                format!("'{path}'"),
-            ));
-        }
-    }
-    Ok(out)
-}
-
-type WalkErr = (KeyPath, String, String);
-
-fn describe(v: &Value) -> String {
-    match v {
-        Value::Object(_) => "a mapping".into(),
-        Value::Array(_) => "a list".into(),
-        Value::String(s) => format!("'{s}'"),
-        Value::Number(n) => format!("'{}'", n.as_f64().map_or(n.to_string(), raw::format_number)),
-        Value::Bool(b) => format!("'{b}'"),
-        Value::Null => "an empty value".into(),
-    }
-}
-
-/// Follow a path through a value tree.
-fn walk<'v>(root: &'v Value, segs: &[String]) -> Result<(&'v Value, KeyPath), WalkErr> {
-    let mut node = root;
-    let mut kp = KeyPath::root();
-    for s in segs {
-        match node {
-            Value::Object(m) => match m.get(s.as_str()) {
-                Some(v) => {
-                    node = v;
-                    kp = kp.k(s);
-                }
-                None => {
-                    let keys: Vec<&str> = m.keys().map(String::as_str).collect();
-                    return Err((
-                        kp.clone(),
-                        format!("one of the keys here ({})", keys.join(", ")),
-                        format!(
-                            "'{s}' (no such key under '{}')",
-                            if kp.0.is_empty() {
-                                "the top level".to_string()
-                            } else {
-                                kp.to_string()
-                            }
-                        ),
-                    ));
-                }
-            },
-            Value::Array(v) => match s.parse::<usize>() {
-                Ok(i) if i < v.len() => {
-                    node = &v[i];
-                    kp = kp.i(i);
-                }
-                _ => {
-                    return Err((
-                        kp.clone(),
-                        format!("an index 0..{} into the list {kp}", v.len()),
-                        format!("'{s}'"),
-                    ))
-                }
-            },
-            other => {
-                return Err((
-                    kp.clone(),
-                    format!("a mapping or list at '{kp}' to follow '{s}' into"),
-                    describe(other),
-                ))
-            }
-        }
-    }
-    Ok((node, kp))
-}
-
-/// Number and unit of a scalar, if it is numeric.
-fn numeric_of(v: &Value) -> Option<(f64, String)> {
-    match v {
-        Value::Number(n) => n.as_f64().map(|x| (x, String::new())),
-        Value::String(s) => crate::units::split_quantity(s),
-        _ => None,
-    }
-}
-
-/// Numeric keys the format knows, by the shape of their path, so that an
-/// override may set one the file leaves out (e.g. `solver.rtol`).
-fn known_numeric_key(segs: &[String]) -> bool {
-    let s: Vec<&str> = segs.iter().map(|x| x.as_str()).collect();
-    matches!(
-        s.as_slice(),
-        ["tolerance"]
-            | [
-                "levels",
-                _,
-                "energy" | "lifetime" | "linewidth" | "tolerance"
-            ]
-            | [
-                "fields",
-                _,
-                "frequency" | "wavelength" | "intensity" | "power" | "waist" | "chirp" | "phase"
-            ]
-            | ["fields", _, "tuned", "detuning"]
-            | ["fields", _, "rabi" | "area", "value"]
-            | [
-                "fields",
-                _,
-                "envelope",
-                "start" | "duration" | "center" | "fwhm" | "sigma" | "tau"
-            ]
-            | [
-                "couplings",
-                _,
-                "dipole" | "einstein_a" | "g_lower" | "g_upper"
-            ]
-            | ["window", "start" | "end"]
-            | ["solver", "rtol" | "atol" | "detuning_cutoff"]
-            | ["initial", _]
-    )
-}
-
-/// Replace the value at `path` by `new`; the key path on success.
-fn apply_override(root: &mut Value, path: &str, new: &str) -> Result<KeyPath, WalkErr> {
-    let segs = split_path(path).map_err(|(e, f)| (KeyPath::root(), e, f))?;
-    if segs.is_empty() {
-        return Err((KeyPath::root(), "a key path".into(), "an empty path".into()));
-    }
-    let Some((new_v, _)) = crate::units::split_quantity(new) else {
-        return Err((
-            KeyPath::root(),
-            "a numeric override value (a number, with a unit where the key takes one)".into(),
-            format!("'{new}' for {path}"),
-        ));
-    };
-    let replacement = match crate::units::split_quantity(new) {
-        Some((_, u)) if u.is_empty() => serde_json::Number::from_f64(new_v)
-            .map_or_else(|| Value::String(new.trim().to_string()), Value::Number),
-        _ => Value::String(new.trim().to_string()),
-    };
-    let (parent_segs, last) = segs.split_at(segs.len() - 1);
-    let last = &last[0];
-    // Where the key is absent but known, create it (and a missing window or
-    // solver mapping).
-    let exists = walk(root, &segs).is_ok();
-    if !exists && known_numeric_key(&segs) {
-        if parent_segs.len() == 1 && (parent_segs[0] == "window" || parent_segs[0] == "solver") {
-            if let Value::Object(m) = root {
-                if !m.contains_key(&parent_segs[0]) {
-                    m.insert(parent_segs[0].clone(), Value::Object(Map::new()));
-                }
-            }
-        }
-        if let Ok((Value::Object(_), _)) = walk(root, parent_segs) {
-            let parent = walk_mut(root, parent_segs);
-            if let Some(Value::Object(m)) = parent {
-                m.insert(last.clone(), replacement);
-                let (_, kp) = walk(root, &segs)?;
-                return Ok(kp);
-            }
-        }
-    }
-    let (node, kp) = walk(root, &segs)?;
-    if numeric_of(node).is_none() {
-        return Err((
-            kp,
-            "a path to a numeric value".into(),
-            format!("{} (not a number)", describe(node)),
-        ));
-    }
-    if let Some(slot) = walk_mut(root, &segs) {
-        *slot = replacement;
-    }
-    Ok(kp)
-}
-
-fn walk_mut<'v>(root: &'v mut Value, segs: &[String]) -> Option<&'v mut Value> {
-    let mut node = root;
-    for s in segs {
-        node = match node {
-            Value::Object(m) => m.get_mut(s.as_str())?,
-            Value::Array(v) => v.get_mut(s.parse::<usize>().ok()?)?,
-            _ => return None,
-        };
-    }
-    Some(node)
-}
-
 /// A YAML-stage error as a diagnostic.
 fn yaml_error(file: &str, e: YamlError) -> SchemeError {
     let expected = match e.kind {
@@ -536,21 +295,5 @@ fn yaml_error(file: &str, e: YamlError) -> SchemeError {
 impl fmt::Display for SchemeSource {
     fn fmt(&self, f: &mut fmt::Formatter) -> fmt::Result {
         write!(f, "{} (sha256 {})", self.path, self.sha256)
-    }
-}
-
-#[cfg(test)]
-mod tests {
-    use super::*;
-
-    #[test]
-    fn splits_paths() {
-        assert_eq!(
-            split_path("couplings[1].dipole").unwrap(),
-            vec!["couplings", "1", "dipole"]
-        );
-        assert_eq!(split_path("a.b.2.c").unwrap(), vec!["a", "b", "2", "c"]);
-        assert!(split_path("a..b").is_err());
-        assert!(split_path("a[1").is_err());
     }
 }

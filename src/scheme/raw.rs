@@ -76,7 +76,9 @@ impl<'de> Deserialize<'de> for Scalar {
 }
 
 /// An id (level or field) as written. Plain numbers are accepted and read as
-/// their text, so `levels: {1: ...}` and `initial: 1` agree.
+/// their text, so `levels: {1: ...}` and `initial: 1` agree. A map
+/// `{ manifold: S, F: 2, m_F: 2 }` (a generated level's name) is kept as its
+/// text form ([`level_name_text`]), which the validator resolves.
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub struct Id(pub String);
 
@@ -93,10 +95,10 @@ fn float_id<E: de::Error>() -> E {
 impl<'de> Deserialize<'de> for Id {
     fn deserialize<D: Deserializer<'de>>(d: D) -> Result<Self, D::Error> {
         struct V;
-        impl Visitor<'_> for V {
+        impl<'de> Visitor<'de> for V {
             type Value = Id;
             fn expecting(&self, f: &mut fmt::Formatter) -> fmt::Result {
-                f.write_str("an id")
+                f.write_str("an id (or a generated level as { manifold: S, F: 2, m_F: 2 })")
             }
             fn visit_bool<E: de::Error>(self, v: bool) -> Result<Id, E> {
                 Ok(Id(v.to_string()))
@@ -113,9 +115,48 @@ impl<'de> Deserialize<'de> for Id {
             fn visit_str<E: de::Error>(self, v: &str) -> Result<Id, E> {
                 Ok(Id(v.to_string()))
             }
+            fn visit_map<A: MapAccess<'de>>(self, m: A) -> Result<Id, A::Error> {
+                level_name(m).map(Id)
+            }
         }
         d.deserialize_any(V)
     }
+}
+
+/// The keys of a level written as a map, in the order of its text form.
+pub const LEVEL_NAME_KEYS: [&str; 3] = ["manifold", "F", "m_F"];
+
+/// The text form of a level name written as a map (`{ manifold: S, F: 2,
+/// m_F: 2 }`): `{manifold: S, F: 2, m_F: 2}` with the keys in that order,
+/// the absent ones left out and the values as written. It begins with `{`,
+/// which no level id may, so the validator tells the two apart; keeping it
+/// as text lets the raw scheme round-trip through JSON for scans.
+pub fn level_name_text(parts: &[Option<String>; 3]) -> String {
+    let inner: Vec<String> = LEVEL_NAME_KEYS
+        .iter()
+        .zip(parts)
+        .filter_map(|(k, v)| v.as_ref().map(|v| format!("{k}: {v}")))
+        .collect();
+    format!("{{{}}}", inner.join(", "))
+}
+
+/// A level name written as a map: only `manifold`, `F` and `m_F`, each
+/// once, `manifold` required.
+fn level_name<'de, A: MapAccess<'de>>(mut m: A) -> Result<String, A::Error> {
+    let mut parts: [Option<String>; 3] = [None, None, None];
+    while let Some(k) = m.next_key::<String>()? {
+        let Some(slot) = LEVEL_NAME_KEYS.iter().position(|x| *x == k) else {
+            return Err(de::Error::unknown_field(&k, &LEVEL_NAME_KEYS));
+        };
+        let v = m.next_value::<Scalar>()?;
+        if parts[slot].replace(v.text()).is_some() {
+            return Err(de::Error::duplicate_field(LEVEL_NAME_KEYS[slot]));
+        }
+    }
+    if parts[0].is_none() {
+        return Err(de::Error::missing_field("manifold"));
+    }
+    Ok(level_name_text(&parts))
 }
 
 /// A map kept in file order, duplicates kept (the validator reports them).

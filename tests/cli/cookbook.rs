@@ -26,7 +26,8 @@
 //!    of the reports and tables), must match exactly.
 //!
 //! Scheme excerpts: every "```yaml" block must be found in the scheme file
-//! named last before it (`level_schemes/cookbook/NAME.yaml`): its lines,
+//! named last before it (`level_schemes/cookbook/NAME.yaml`, or a demo
+//! `level_schemes/NAME.yaml`): its lines,
 //! in order, are lines of that file (an excerpt may skip lines between them).
 //!
 //! To regenerate after a deliberate change, run
@@ -497,7 +498,7 @@ fn cookbook_schemes_and_images_are_accounted_for() {
 fn cookbook_yaml_excerpts_match_the_scheme_files() {
     let doc = std::fs::read_to_string(root().join("docs/cookbook.md")).expect("docs/cookbook.md");
     const OPEN: &str = "```yaml\n";
-    const DIR: &str = "level_schemes/cookbook/";
+    const DIR: &str = "level_schemes/";
     let mut checked = 0;
     let mut from = 0;
     while let Some(i) = doc[from..].find(OPEN) {

@@ -28,6 +28,16 @@ const CASES: &[(&str, &[&str], i32)] = &[
         0,
     ),
     (
+        "sigma_pumping.vet.json",
+        &["vet", "level_schemes/sigma_pumping.yaml"],
+        3,
+    ),
+    (
+        "sigma_pumping.inspect.json",
+        &["inspect", "level_schemes/sigma_pumping.yaml"],
+        0,
+    ),
+    (
         "ladder_two_step.vet.json",
         &["vet", "level_schemes/ladder_two_step.yaml"],
         0,
@@ -125,6 +135,7 @@ const COOKBOOK: &[(&str, i32)] = &[
     ("raman_cross_legs", 0),
     ("raman_own_legs", 0),
     ("raman_retuned", 0),
+    ("sigma_pumping_pure", 0),
 ];
 
 fn root() -> &'static Path {

@@ -13,6 +13,8 @@ mod cookbook;
 mod honesty;
 mod json_golden;
 mod limits;
+mod model_text;
 mod open_csv;
 mod output_files;
 mod readme;
+mod sublevels;

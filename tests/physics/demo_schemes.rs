@@ -91,34 +91,138 @@ fn calibration_is_a_resonant_rectangular_pi_pulse() {
 #[test]
 fn hyperfine_spectators_and_tolerances() {
     let m = load("hyperfine_manifold.yaml");
-    let g = idx(&m, "g");
-    assert_eq!(m.targets(), vec![idx(&m, "e3")]);
-    assert_eq!(m.drives().len(), 4);
-    // Detunings of the one field from each g -> ek line (MHz).
-    // The field sits on e3, the highest level: blue of e0..e2.
-    let expect = [("e0", 496.0), ("e1", 424.0), ("e2", 267.0), ("e3", 0.0)];
-    for (k, (id, det)) in expect.iter().enumerate() {
-        let d = &m.drives()[k];
-        assert_eq!(m.couplings()[d.coupling].lower, g);
-        assert_eq!(m.couplings()[d.coupling].upper, idx(&m, id));
-        assert!(
-            (mhz(m.detuning(d)) - det).abs() < 1e-3,
-            "{id}: {}",
-            mhz(m.detuning(d))
-        );
+    let ids: Vec<&str> = m.levels().iter().map(|l| l.id.as_str()).collect();
+    assert_eq!(ids, ["S_F1", "S_F2", "P_F0", "P_F1", "P_F2", "P_F3"]);
+    let g = idx(&m, "S_F2");
+    assert_eq!(m.targets(), vec![idx(&m, "P_F3")]);
+    // Zero-field hyperfine energies E_F = A K/2 + B (3/2 K(K+1) - 2 I(I+1)
+    // J(J+1)) / (4 I(2I-1) J(2J-1)), K = F(F+1) - I(I+1) - J(J+1)
+    // (Arimondo, Inguscio, Violino, Rev. Mod. Phys. 49, 31 (1977)): with the
+    // header's A = 86 MHz, B = 10 MHz the intervals F'=3-2, 2-1, 1-0 are
+    // 3A + B = 268, 2A - B = 162, A - B = 76 MHz; S: 2A = 6200 MHz.
+    let gap = |a: &str, b: &str| mhz(m.levels()[idx(&m, a)].omega - m.levels()[idx(&m, b)].omega);
+    assert!((gap("P_F3", "P_F2") - 268.0).abs() < 1e-6);
+    assert!((gap("P_F2", "P_F1") - 162.0).abs() < 1e-6);
+    assert!((gap("P_F1", "P_F0") - 76.0).abs() < 1e-6);
+    assert!((gap("S_F2", "S_F1") - 6200.0).abs() < 1e-6);
+    // Selection rules: F = 2 reaches F' = 1, 2, 3, never F' = 0; F = 1
+    // reaches F' = 0, 1, 2 (beyond the 1 GHz cutoff, 6.2 GHz away).
+    let from = |lower: usize| -> Vec<(String, f64, bool, f64)> {
+        m.drives()
+            .iter()
+            .filter(|d| m.couplings()[d.coupling].lower == lower)
+            .map(|d| {
+                let up = m.couplings()[d.coupling].upper;
+                (
+                    m.levels()[up].id.clone(),
+                    mhz(m.detuning(d)),
+                    m.drive_included(d),
+                    d.rabi,
+                )
+            })
+            .collect()
+    };
+    let f2 = from(g);
+    let f1 = from(idx(&m, "S_F1"));
+    let names = |v: &[(String, f64, bool, f64)]| v.iter().map(|x| x.0.clone()).collect::<Vec<_>>();
+    assert_eq!(names(&f2), ["P_F1", "P_F2", "P_F3"]);
+    assert_eq!(names(&f1), ["P_F0", "P_F1", "P_F2"]);
+    assert!(f2.iter().all(|x| x.2) && f1.iter().all(|x| !x.2));
+    // The field sits on P_F3, blue of P_F2 and P_F1 by 268 and 430 MHz.
+    for ((_, det, _, _), want) in f2.iter().zip([430.0, 268.0, 0.0]) {
+        assert!((det - want).abs() < 1e-3, "{det} vs {want}");
     }
-    // pi on g -> e3; the others scale by their dipoles (e1 is negative).
-    assert_relative_eq!(m.pulse_area(&m.drives()[3]), PI, max_relative = 1e-12);
+    // Rabi frequencies scale as sqrt(S_FF'): for J = 1/2 -> 3/2, I = 3/2,
+    // S_2F' = 1/20, 1/4, 7/10 for F' = 1, 2, 3 (D. A. Steck, alkali D-line
+    // data, relative hyperfine transition strength factors).
     assert_relative_eq!(
-        m.drives()[1].rabi / m.drives()[3].rabi,
-        -1.1 / 2.4,
+        f2[1].3 / f2[2].3,
+        (0.25_f64 / 0.7).sqrt(),
         max_relative = 1e-12
     );
-    assert_relative_eq!(m.tolerance_of(idx(&m, "e2")), 5e-4);
-    assert_relative_eq!(m.tolerance_of(idx(&m, "e0")), 1e-3);
+    assert_relative_eq!(
+        f2[0].3 / f2[2].3,
+        (0.05_f64 / 0.7).sqrt(),
+        max_relative = 1e-12
+    );
+    let main = m
+        .drives()
+        .iter()
+        .find(|d| m.couplings()[d.coupling].upper == idx(&m, "P_F3"))
+        .unwrap();
+    assert_relative_eq!(m.pulse_area(main), PI, max_relative = 1e-12);
+    assert_relative_eq!(m.tolerance_of(idx(&m, "P_F2")), 5e-4);
+    assert_relative_eq!(m.tolerance_of(idx(&m, "S_F1")), 5e-4);
+    // Lifetime 45 ns on every P level; P_F3 decays only to S_F2 (branching
+    // (2F+1)(2J'+1){J J' 1; F' F I}^2 = 1 for F' = 3 -> F = 2).
+    let p3 = idx(&m, "P_F3");
+    assert_relative_eq!(m.levels()[p3].gamma, 1.0 / 45e-9, max_relative = 1e-12);
+    let b = m.branches(p3);
+    assert_eq!(b.len(), 1);
+    assert_eq!(b[0].0, g);
+    assert_relative_eq!(b[0].1, 1.0, max_relative = 1e-12);
     // Peak Omega/2pi about 130 MHz, as the header says.
-    let peak = mhz(m.drives()[3].rabi);
+    let peak = mhz(main.rabi);
     assert!((125.0..140.0).contains(&peak), "{peak}");
+}
+
+#[test]
+fn sigma_pumping_generates_sublevels_impurity_and_decay() {
+    let m = load("sigma_pumping.yaml");
+    // 8 ground and 16 upper sublevels of I = 3/2 with J = 1/2 and 3/2.
+    assert_eq!(m.levels().len(), 24);
+    assert_eq!(m.initial()[idx(&m, "S_F2_m+1")], 1.0);
+    assert_eq!(m.targets(), vec![idx(&m, "S_F2_m+2")]);
+    // Every sublevel pair with |Delta m_F| <= 1 is coupled at 3 G: 68
+    // (counted by hand from the m_F ladders; 54 of them allowed at zero field).
+    assert_eq!(m.couplings().len(), 68);
+    // One field, all three polarisation components present: one drive per
+    // coupling.
+    assert_eq!(m.fields().len(), 1);
+    assert_eq!(m.drives().len(), 68);
+    // The tuned line is resonant at the field, 5 MHz on it.
+    let (a, b) = (idx(&m, "S_F2_m+2"), idx(&m, "P_F3_m+3"));
+    let main = m
+        .drives()
+        .iter()
+        .find(|d| m.couplings()[d.coupling].lower == a && m.couplings()[d.coupling].upper == b)
+        .unwrap();
+    assert!(mhz(m.detuning(main)).abs() < 1e-9);
+    assert_relative_eq!(mhz(main.rabi), 5.0, max_relative = 1e-12);
+    // The pi impurity on |2,+1> -> |3',+1'>: by the Wigner-Eckart theorem
+    // the ratio of its element to the stretched line's is
+    // <2 1; 1 0|3 1> / <2 2; 1 1|3 3> = sqrt(8/15) (standard Clebsch-Gordan
+    // tables, e.g. the Particle Data Group's), times sqrt(0.02 / 0.97) for
+    // the intensity fractions: exact at zero field, within the F-mixing of
+    // 3 G (mu_B B / 268 MHz ~ 2 %) at the demo's field.
+    let want = (8.0_f64 / 15.0).sqrt() * (0.02_f64 / 0.97).sqrt();
+    let text = std::fs::read_to_string(dir().join("sigma_pumping.yaml")).unwrap();
+    let zero = scheme::parse(&text.replace("\"3 G\"", "\"0 G\""), "zero.yaml").unwrap();
+    for (model, tol) in [(&m, 2e-2), (&zero, 1e-12)] {
+        let rabi = |lo: &str, up: &str| {
+            let (a, b) = (idx(model, lo), idx(model, up));
+            model
+                .drives()
+                .iter()
+                .find(|x| {
+                    let c = &model.couplings()[x.coupling];
+                    c.lower == a && c.upper == b
+                })
+                .unwrap()
+                .rabi
+        };
+        let ratio = (rabi("S_F2_m+1", "P_F3_m+1") / rabi("S_F2_m+2", "P_F3_m+3")).abs();
+        assert_relative_eq!(ratio, want, max_relative = tol);
+    }
+    // Decay generated as coherent channels, three photon polarisations.
+    assert_eq!(m.jumps().len(), 3);
+    let top = idx(&m, "P_F3_m+3");
+    assert_relative_eq!(m.levels()[top].gamma, 1.0 / 45e-9, max_relative = 1e-12);
+    // The stretched upper state decays only to the stretched ground state.
+    let br = m.branches(top);
+    assert_eq!(br.len(), 1);
+    assert_eq!(br[0].0, a);
+    assert_relative_eq!(br[0].1, 1.0, max_relative = 1e-9);
 }
 
 #[test]
@@ -224,4 +328,73 @@ fn complete_example_in_the_format_reference_parses() {
     assert_eq!(m.levels().len(), 2);
     assert_relative_eq!(mhz(m.detuning(&m.drives()[0])), -20.0, max_relative = 1e-6);
     assert!(doc.contains("IEC 60825-1"));
+}
+
+/// vet of a shipped scheme (the library's pipeline, as the CLI runs it).
+fn vet_file(rel: &str) -> levelplan::report::VetReport {
+    let p = Path::new(env!("CARGO_MANIFEST_DIR")).join(rel);
+    let (model, src) = read(&p);
+    let prov = levelplan::report::Provenance::new(rel, &src.sha256);
+    levelplan::pipeline::vet_model(&model, prov, None).unwrap_or_else(|e| panic!("{e}"))
+}
+
+fn row<'a>(r: &'a levelplan::report::VetReport, id: &str) -> &'a levelplan::report::LevelRow {
+    r.levels.iter().find(|l| l.id == id).unwrap()
+}
+
+/// The hyperfine demo flags the right levels for the right reason: P_F2 by
+/// the drive from S_F2 268 MHz off resonance (the pulse spectrum), S_F1 by
+/// the decay of P_F2 (F' = 2 -> F = 1 has branching 1/2 for I = 3/2,
+/// J = 1/2 -> 3/2: D. A. Steck, alkali D-line data), and nothing reaches
+/// P_F0 (no F = 2 -> F' = 0 line, S_F1 empty at the start).
+#[test]
+fn hyperfine_demo_flags_the_neighbour_and_its_decay() {
+    let r = vet_file("level_schemes/hyperfine_manifold.yaml");
+    let flagged: Vec<&str> = r
+        .levels
+        .iter()
+        .filter(|l| l.flagged)
+        .map(|l| l.id.as_str())
+        .collect();
+    assert_eq!(flagged, ["S_F1", "P_F2"]);
+    assert_eq!(levelplan::pipeline::vet_status(&r), 3);
+    let p2 = row(&r, "P_F2");
+    let first = &p2.sources[0];
+    assert_eq!(first.from, "S_F2");
+    assert!((first.detuning / TWO_PI / 1e6 - 268.0).abs() < 1e-3);
+    assert!(p2.final_population > 2.0 * p2.tolerance);
+    let s1 = row(&r, "S_F1");
+    assert_eq!(s1.sources[0].via.as_deref(), Some("P_F2"));
+    assert_eq!(row(&r, "P_F0").final_population, 0.0);
+}
+
+/// sigma+ light from |2,+1> can only raise m_F, and the decay of
+/// |3', +2'> returns to m_F = +1, +2: with pure sigma+ no m_F <= 0 sublevel
+/// is ever populated (m_F is conserved exactly along the field; Delta m =
+/// +1 in absorption: the dipole selection rules, Edmonds ch. 5). The pi
+/// and sigma- impurity reaches |2, 0>, above the 1e-3 tolerance, through
+/// the decay of |3', +1'> (common practice, no source).
+#[test]
+fn sigma_pumping_impurity_is_what_breaks_the_tolerance() {
+    let impure = vet_file("level_schemes/sigma_pumping.yaml");
+    let pure = vet_file("level_schemes/cookbook/sigma_pumping_pure.yaml");
+    let flagged = |r: &levelplan::report::VetReport| -> Vec<String> {
+        r.levels
+            .iter()
+            .filter(|l| l.flagged)
+            .map(|l| l.id.clone())
+            .collect()
+    };
+    assert_eq!(flagged(&impure), ["S_F2_m0"]);
+    assert!(flagged(&pure).is_empty());
+    for id in ["S_F2_m0", "S_F2_m-1", "S_F2_m-2"] {
+        assert_eq!(row(&pure, id).final_population, 0.0, "{id}");
+    }
+    let m0 = row(&impure, "S_F2_m0");
+    assert!(m0.final_population > 1e-3, "{}", m0.final_population);
+    assert_eq!(m0.sources[0].via.as_deref(), Some("P_F3_m+1"));
+    // The target gets most of the population either way.
+    for r in [&impure, &pure] {
+        assert!(row(r, "S_F2_m+2").final_population > 0.9);
+    }
 }

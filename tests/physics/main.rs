@@ -14,6 +14,7 @@ mod estimate;
 mod estimate_rates;
 mod estimate_remedy;
 mod manifold_reference;
+mod manifold_scans;
 mod open_reference;
 mod propagation_budget;
 mod propagation_dop853;

@@ -3,17 +3,22 @@
 //! spelled for reading. Text, Markdown and LaTeX each render a [`Doc`].
 //!
 //! Owns: the layout of the vet and inspect reports (which columns, which
-//! units). Must not: compute physics (every number comes from the report) or
+//! units; `vet.rs`, `inspect.rs`), and how sublevels are grouped into rows
+//! (`groups.rs`). Must not: compute physics (every number comes from the report) or
 //! write anything.
 
+mod groups;
+mod inspect;
 mod vet;
 
+pub use groups::Sublevels;
+pub use inspect::inspect_doc;
 pub use vet::vet_doc;
 
 use super::numfmt::{self, Num};
 use crate::estimate::Order;
-use crate::model::InitialKind;
-use crate::report::{InspectReport, SafetyNote};
+use crate::model::{Dynamics, InitialKind};
+use crate::report::SafetyNote;
 use crate::solve::MethodUsed;
 
 const TWO_PI: f64 = 2.0 * std::f64::consts::PI;
@@ -22,8 +27,20 @@ const TWO_PI: f64 = 2.0 * std::f64::consts::PI;
 /// of unknown intensity.
 pub const SAFETY_TEXT: &str = "Laser safety: these numbers are for planning only. Beam powers used in such schemes can cause eye and skin injury; follow your institution's laser-safety rules and its laser safety officer, and the applicable standards (IEC 60825-1, ANSI Z136.1).";
 
-/// Plain statement of what the numbers are.
+/// Plain statement of what the numbers are, for a run of the amplitudes
+/// (the version-1 wording; its bytes are in the goldens).
 pub const MODEL_TEXT: &str = "Results are model calculations (Schrodinger equation with the stated approximations); check them against measurement.";
+
+/// The same statement for a run of the density matrix.
+pub const MODEL_TEXT_DENSITY: &str = "Results are model calculations (Lindblad master equation for the density matrix, with the stated approximations); check them against measurement.";
+
+/// The statement naming the equation the run solved.
+pub fn model_text(dynamics: Dynamics) -> &'static str {
+    match dynamics {
+        Dynamics::DensityMatrix => MODEL_TEXT_DENSITY,
+        Dynamics::Amplitudes | Dynamics::Auto => MODEL_TEXT,
+    }
+}
 
 /// The note under the levels of `vet` and `inspect` when the initial state
 /// is the version-1 map with more than one populated level: how it is
@@ -131,6 +148,24 @@ pub fn latex_escape(s: &str) -> String {
     out
 }
 
+/// A "largest sublevel" cell: the sublevel's id and its population, or
+/// "-" when no sublevel of the group holds any (none is largest then).
+fn largest_cell(id: &str, population: f64) -> Cell {
+    if population <= 0.0 {
+        return Cell {
+            plain: "-".into(),
+            latex: "--".into(),
+            mark: Mark::None,
+        };
+    }
+    let p = numfmt::population(population);
+    Cell {
+        plain: format!("{id} {}", p.plain()),
+        latex: format!("{} {}", latex_escape(id), p.latex()),
+        mark: Mark::None,
+    }
+}
+
 fn table(headers: &[&str], align: &[Align], rows: Vec<Vec<Cell>>) -> Table {
     Table {
         headers: headers.iter().map(|s| s.to_string()).collect(),
@@ -204,126 +239,16 @@ fn safety_section(notes: &[SafetyNote]) -> Option<Section> {
     })
 }
 
-/// Lay out the inspect report.
-pub fn inspect_doc(r: &InspectReport) -> Doc {
-    use Align::*;
-    let mut meta = provenance_meta(
-        &r.provenance.tool,
-        &r.provenance.version,
-        &r.provenance.scheme_file,
-        &r.provenance.scheme_sha256,
-    );
-    meta.push(window_meta(r.window));
-    meta.push((
-        "detuning cutoff".into(),
-        numfmt::frequency(r.detuning_cutoff / TWO_PI, false).plain(),
-    ));
-    let levels = r
-        .levels
-        .iter()
-        .map(|l| {
-            vec![
-                Cell::text(&l.id),
-                Cell::text(l.label.as_deref().unwrap_or("")),
-                Cell::num(numfmt::wavenumber(l.energy_cm)),
-                Cell::num(numfmt::frequency(l.energy_hz, false)),
-                l.lifetime
-                    .map_or_else(Cell::dash, |t| Cell::num(numfmt::time(t))),
-                Cell::text(l.role.as_str()),
-                if l.initial_population > 0.0 {
-                    Cell::num(numfmt::population(l.initial_population))
-                } else {
-                    Cell::dash()
-                },
-            ]
-        })
-        .collect();
-    // Same first cells as doc/vet.rs excluded drives: the two tables go on with other columns.
-    let drives = r
-        .drives
-        .iter()
-        .map(|d| {
-            vec![
-                Cell::text(&d.field),
-                Cell::text(&format!("{} - {}", d.lower, d.upper)),
-                Cell::num(numfmt::frequency(d.transition_hz, false)),
-                d.wavelength
-                    .map_or_else(Cell::dash, |w| Cell::num(numfmt::wavelength(w))),
-                Cell::num(numfmt::frequency(d.detuning_hz, true)),
-                Cell::num(numfmt::frequency(d.rabi_hz, false)),
-                Cell::num(numfmt::area_in_pi(d.area)),
-                if d.included {
-                    Cell::text("yes")
-                } else {
-                    Cell::text("no (cutoff)").marked(Mark::Caution)
-                },
-            ]
-        })
-        .collect();
-    let fields = r
-        .fields
-        .iter()
-        .map(|f| {
-            vec![
-                Cell::text(&f.id),
-                Cell::num(numfmt::frequency(f.frequency_hz, false)),
-                Cell::num(numfmt::wavelength(f.wavelength)),
-                Cell::text(&f.shape),
-                Cell::num(numfmt::time(f.length)),
-                f.peak_intensity.map_or_else(
-                    || Cell::text("unknown"),
-                    |i| Cell::num(numfmt::intensity(i)),
-                ),
-                if f.chirp_hz_per_s == 0.0 {
-                    Cell::dash()
-                } else {
-                    Cell::num(numfmt::sci(f.chirp_hz_per_s, 3, "Hz/s"))
-                },
-                Cell::text(if f.rwa { "yes" } else { "no" }),
-            ]
-        })
-        .collect();
-    // Same shape per section (heading, table, notes): each is one literal of its own data.
-    let mut sections = vec![
-        Section {
-            heading: "Levels".into(),
-            table: Some(table(
-                &["level", "label", "energy", "energy/h", "lifetime", "role", "initial"],
-                &[Left, Left, Right, Right, Right, Left, Right],
-                levels,
-            )),
-            notes: initial_note(r.initial_kind, r.initial_levels)
-                .into_iter()
-                .collect(),
-        },
-        Section {
-            heading: "Drives (field x coupling)".into(),
-            table: Some(table(
-                &["field", "transition", "frequency", "wavelength", "detuning", "Rabi freq.", "area", "in dynamics"],
-                &[Left, Left, Right, Right, Right, Right, Right, Left],
-                drives,
-            )),
-            notes: vec!["Rabi frequency Omega/2pi at the envelope peak; pulse area Omega x integral of the envelope; detuning = laser - transition (positive = blue).".into()],
-        },
-        Section {
-            heading: "Fields".into(),
-            table: Some(table(
-                &["field", "frequency", "wavelength", "envelope", "length", "peak intensity", "chirp", "RWA"],
-                &[Left, Right, Right, Left, Right, Right, Right, Left],
-                fields,
-            )),
-            notes: vec!["length: duration of finite pulses, intensity FWHM of gaussian and sech pulses.".into()],
-        },
-    ];
-    if let Some(s) = safety_section(&r.safety) {
-        sections.push(s);
-    }
-    Doc {
-        title: match &r.title {
-            Some(t) => format!("Scheme: {t}"),
-            None => "Scheme".into(),
-        },
-        meta,
-        sections,
+#[cfg(test)]
+mod tests {
+    use super::largest_cell;
+
+    /// Regression: an empty group named its first sublevel as "largest"
+    /// with population 0; it now shows a dash.
+    #[test]
+    fn an_empty_group_has_no_largest_sublevel() {
+        assert_eq!(largest_cell("P_F1_m-1", 0.0).plain, "-");
+        let c = largest_cell("S_F1_m+1", 2.35e-4);
+        assert!(c.plain.starts_with("S_F1_m+1 "), "{}", c.plain);
     }
 }

@@ -1,12 +1,14 @@
 //! The layout of the vet report: the level table, leaks with the drives
 //! that feed them, remedies, drives left out, the summary.
 //!
-//! Owns: which sections a vet report has and their wording. Must not:
+//! Owns: which sections a vet report has and their wording, the cells of a
+//! group of sublevels (`groups.rs` says which rows form one). Must not:
 //! compute (every number comes from the report) or pick a format.
 
+use super::groups::{self, Entry, Group, Sublevels};
 use super::{
-    initial_note, method_name, numfmt, order_name, provenance_meta, safety_section, table,
-    window_meta, Align, Cell, Doc, Mark, Section, MODEL_TEXT, TWO_PI,
+    initial_note, largest_cell, method_name, model_text, numfmt, order_name, provenance_meta,
+    safety_section, table, window_meta, Align, Cell, Doc, Mark, Section, TWO_PI,
 };
 use crate::model::{Dynamics, Readout};
 use crate::report::{Channel, LevelRow, RemedyCheck, RemedyRow, Role, SourceRow, VetReport};
@@ -69,59 +71,160 @@ fn vet_meta(r: &VetReport) -> Vec<(String, String)> {
     meta
 }
 
-/// The table of every level's populations.
-fn levels_section(r: &VetReport) -> Section {
+/// The table of every level's populations; sublevels grouped by manifold
+/// and F unless `mode` asks for each (a "largest sublevel" column then
+/// follows "final").
+fn levels_section(r: &VetReport, mode: Sublevels) -> Section {
     use Align::*;
-    let rows = r
-        .levels
+    let quantum: Vec<_> = r.levels.iter().map(|l| l.quantum.as_ref()).collect();
+    let entries = groups::entries(&quantum, mode);
+    let grouped = groups::first_group(&entries).map(Group::label);
+    let rows = entries
         .iter()
-        .map(|l| {
-            let fin = Cell::num(numfmt::population(l.final_population)).marked(if l.flagged {
-                Mark::Alert
-            } else {
-                Mark::None
-            });
-            vec![
-                Cell::text(&l.id),
-                Cell::text(l.role.as_str()),
-                fin,
-                Cell::num(numfmt::population(l.peak_population)),
-                l.estimate()
-                    .map_or_else(Cell::dash, |e| Cell::num(numfmt::population(e))),
-                Cell::text(order_name(l.order)),
-                l.ratio
-                    .map_or_else(Cell::dash, |x| Cell::num(numfmt::ratio(x))),
-                if l.role == Role::Spectator {
-                    Cell::num(numfmt::population(l.tolerance))
-                } else {
-                    Cell::dash()
-                },
-                status_cell(l),
-            ]
+        .map(|e| match e {
+            Entry::One(k) => {
+                let mut cells = level_cells(&r.levels[*k]);
+                if grouped.is_some() {
+                    cells.insert(3, Cell::dash());
+                }
+                cells
+            }
+            Entry::Group(g) => group_cells(&r.levels, g),
         })
         .collect();
-    let levels = table(
-        &[
-            "level",
-            "role",
-            "final",
-            "peak",
-            "estimate",
-            "order",
-            "final/est",
-            "tolerance",
-            "status",
-        ],
-        &[Left, Left, Right, Right, Right, Left, Right, Right, Left],
-        rows,
-    );
+    let mut headers = vec![
+        "level",
+        "role",
+        "final",
+        "peak",
+        "estimate",
+        "order",
+        "final/est",
+        "tolerance",
+        "status",
+    ];
+    let mut align = vec![Left, Left, Right, Right, Right, Left, Right, Right, Left];
+    if grouped.is_some() {
+        headers.insert(3, "largest sublevel");
+        align.insert(3, Left);
+    }
+    let levels = table(&headers, &align, rows);
     let mut notes = level_notes(r);
+    if let Some(label) = &grouped {
+        notes.push(group_note(label));
+    }
     notes.extend(open_notes(r));
     Section {
         heading: "Populations at the end of the window".into(),
         table: Some(levels),
         notes,
     }
+}
+
+/// What a group row of the level table means, `label` the first group's.
+fn group_note(label: &str) -> String {
+    format!("grouped rows ({label}, ...): final and estimate summed over the m_F sublevels of one F level of a manifold, largest sublevel the one with the most final population; flags stay per sublevel (LEAK (n of m): n sublevels above their tolerance); peak, order and final/est per sublevel with every sublevel on its own row (--sublevels).")
+}
+
+/// The cells of one level's row.
+fn level_cells(l: &LevelRow) -> Vec<Cell> {
+    let fin = Cell::num(numfmt::population(l.final_population)).marked(if l.flagged {
+        Mark::Alert
+    } else {
+        Mark::None
+    });
+    vec![
+        Cell::text(&l.id),
+        Cell::text(l.role.as_str()),
+        fin,
+        Cell::num(numfmt::population(l.peak_population)),
+        l.estimate()
+            .map_or_else(Cell::dash, |e| Cell::num(numfmt::population(e))),
+        Cell::text(order_name(l.order)),
+        l.ratio
+            .map_or_else(Cell::dash, |x| Cell::num(numfmt::ratio(x))),
+        if l.role == Role::Spectator {
+            Cell::num(numfmt::population(l.tolerance))
+        } else {
+            Cell::dash()
+        },
+        status_cell(l),
+    ]
+}
+
+/// The cells of a group's row: total final population (marked when a
+/// member leaks), the largest member, the summed estimate, the order and
+/// the spectators' tolerance where the members share them, the status.
+fn group_cells(levels: &[LevelRow], g: &Group) -> Vec<Cell> {
+    let flagged = g.members.iter().filter(|&&k| levels[k].flagged).count();
+    let total = g.sum(|k| levels[k].final_population);
+    let big = &levels[g.largest(|k| levels[k].final_population)];
+    let estimates: Vec<f64> = g
+        .members
+        .iter()
+        .filter_map(|&k| levels[k].estimate())
+        .collect();
+    let tolerances: Vec<f64> = g
+        .members
+        .iter()
+        .filter(|&&k| levels[k].role == Role::Spectator)
+        .map(|&k| levels[k].tolerance)
+        .collect();
+    let tolerance = match tolerances.split_first() {
+        Some((t, rest)) if rest.iter().all(|x| x == t) => Cell::num(numfmt::population(*t)),
+        _ => Cell::dash(),
+    };
+    vec![
+        Cell::text(&g.label()),
+        Cell::text(&g.roles(|k| levels[k].role)),
+        Cell::num(numfmt::population(total)).marked(if flagged > 0 {
+            Mark::Alert
+        } else {
+            Mark::None
+        }),
+        largest_cell(&big.id, big.final_population),
+        Cell::dash(),
+        if estimates.is_empty() {
+            Cell::dash()
+        } else {
+            Cell::num(numfmt::population(estimates.iter().sum()))
+        },
+        Cell::text(g.common(|k| order_name(levels[k].order)).unwrap_or("mixed")),
+        Cell::dash(),
+        tolerance,
+        group_status(levels, g, flagged),
+    ]
+}
+
+/// The status of a group: every word a member's status has (LEAK with how
+/// many members leak), "ok" for a group of spectators within tolerance.
+fn group_status(levels: &[LevelRow], g: &Group, flagged: usize) -> Cell {
+    let any = |f: fn(&LevelRow) -> bool| g.members.iter().any(|&k| f(&levels[k]));
+    let mut words = Vec::new();
+    if flagged > 0 {
+        words.push(format!("LEAK ({flagged} of {})", g.members.len()));
+    }
+    let short = any(|l| l.below_goal);
+    if short {
+        words.push("SHORT".into());
+    }
+    let unreliable = any(|l| l.unreliable);
+    if unreliable {
+        words.push("est?".into());
+    }
+    if words.is_empty() {
+        return if g.common(|k| levels[k].role) == Some(Role::Spectator) {
+            Cell::text("ok").marked(Mark::Good)
+        } else {
+            Cell::text("")
+        };
+    }
+    let mark = if flagged > 0 || short {
+        Mark::Alert
+    } else {
+        Mark::Caution
+    };
+    Cell::text(&words.join(" ")).marked(mark)
 }
 
 /// Notes on the open-system side of a run: where "final" is read, the
@@ -358,9 +461,9 @@ fn summary_section(r: &VetReport) -> Section {
     }
 }
 
-/// Lay out the vet report.
-pub fn vet_doc(r: &VetReport) -> Doc {
-    let mut sections = vec![levels_section(r)];
+/// Lay out the vet report; `mode`: sublevels grouped or each on its row.
+pub fn vet_doc(r: &VetReport, mode: Sublevels) -> Doc {
+    let mut sections = vec![levels_section(r, mode)];
     sections.extend(leak_sections(r));
     sections.extend(excluded_section(r));
     sections.push(summary_section(r));
@@ -370,7 +473,7 @@ pub fn vet_doc(r: &VetReport) -> Doc {
     sections.push(Section {
         heading: String::new(),
         table: None,
-        notes: vec![MODEL_TEXT.into()],
+        notes: vec![model_text(r.dynamics).into()],
     });
     Doc {
         title: match &r.title {

@@ -37,7 +37,8 @@ pub(super) struct CouplingInfo {
     pub q: Option<i32>,
 }
 
-/// Every coupling (None where its level pair did not validate), those
+/// Every coupling (None where its level pair, or a coupling between
+/// manifolds, did not validate), those
 /// between manifolds expanded into their sublevel couplings after the
 /// others, and what those generate besides; None when there are too many
 /// couplings.
@@ -65,8 +66,11 @@ pub(super) fn couplings(
         let path = cp.i(ci);
         if manifold_couplings::names_manifold(rc, manifolds) {
             let list = driven_by(ctx, rc, &path, fields);
-            if let Some(s) = manifold_couplings::read(ctx, rc, &path, ci, manifolds, list) {
-                specs.push(s);
+            match manifold_couplings::read(ctx, rc, &path, ci, manifolds, list) {
+                Some(s) => specs.push(s),
+                // A placeholder: references to the pairs it would have
+                // joined are not reported again.
+                None => out.push(None),
             }
         } else {
             out.push(coupling(ctx, rc, &path, ci, levels, fields));
@@ -255,6 +259,7 @@ pub(super) fn drives(
     ctx: &mut Ctx,
     field_ids: &[String],
     polarizations: &[Option<[f64; 3]>],
+    polarization_written: &[bool],
     couplings: &[Option<CouplingInfo>],
     levels: &Levels,
 ) -> Option<(Vec<Drive>, Vec<f64>)> {
@@ -274,7 +279,9 @@ pub(super) fn drives(
                 (None, _) => 1.0,
                 (Some(q), Some(p)) => p[(q + 1) as usize].sqrt(),
                 (Some(_), None) => {
-                    if !told {
+                    // A polarization written but not valid has its message.
+                    let written = polarization_written.get(fi).copied().unwrap_or(false);
+                    if !told && !written {
                         ctx.missing(
                             &KeyPath::root().k("fields").k(fid).k("polarization"),
                             format!(

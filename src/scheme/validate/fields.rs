@@ -185,13 +185,19 @@ fn tuned(
     levels: &Levels,
     couplings: &[Option<CouplingInfo>],
 ) -> Option<f64> {
-    let pr = levels.pair(ctx, &tp.k("to"), &t.to);
+    let pr = levels.tuning_pair(ctx, &tp.k("to"), &t.to);
     let det = ctx.req_quantity(&tp.k("detuning"), &t.detuning, Kind::Frequency, Sign::Any);
     let (a, b) = pr?;
-    let joined = couplings
-        .iter()
-        .flatten()
-        .any(|c| (c.lower == a && c.upper == b) || (c.lower == b && c.upper == a));
+    let (ma, mb) = (levels.members(a), levels.members(b));
+    let joined = couplings.iter().flatten().any(|c| {
+        (ma.contains(&c.lower) && mb.contains(&c.upper))
+            || (mb.contains(&c.lower) && ma.contains(&c.upper))
+    });
+    if !joined && couplings.iter().any(Option::is_none) {
+        // A coupling that did not validate may be the one meant; its own
+        // message says why.
+        return None;
+    }
     if !joined {
         let ids = t.to.as_deref().unwrap_or(&[]);
         ctx.push(
@@ -205,10 +211,11 @@ fn tuned(
         );
         return None;
     }
-    let (Some(det), true) = (det, levels.energy_ok[a] && levels.energy_ok[b]) else {
+    let (Some(det), Some(ea), Some(eb)) = (det, levels.tuning_energy(a), levels.tuning_energy(b))
+    else {
         return None;
     };
-    let w_ab = (levels.list[a].omega - levels.list[b].omega).abs();
+    let w_ab = (ea - eb).abs();
     let w = w_ab + det;
     if w > 0.0 && w.is_finite() {
         return Some(w);
@@ -393,11 +400,21 @@ fn reference_drive(
         .find(|&k| s.couplings[drives[k].coupling].as_ref().is_some_and(joins));
     if found.is_none() {
         let id = &s.fields[fi].id;
-        let exists = s.couplings.iter().flatten().any(joins);
-        let why = if exists {
-            format!("its `fields:` list leaves '{id}' out")
-        } else {
-            "no coupling joins them".to_string()
+        let joining = s.couplings.iter().flatten().find(|c| joins(c));
+        let polarization = s.fields[fi].polarization;
+        let why = match (joining, joining.and_then(|c| c.q)) {
+            // Its own message (a polarization missing or not valid, a
+            // coupling that did not validate) says why.
+            (Some(_), Some(_)) if polarization.is_none() => return None,
+            (None, _) if s.couplings.iter().any(Option::is_none) => return None,
+            (Some(_), Some(q)) if polarization.is_some_and(|p| p[(q + 1) as usize] == 0.0) => {
+                format!(
+                    "its polarization has no {} component, which this transition needs",
+                    ["sigma-", "pi", "sigma+"][(q + 1) as usize]
+                )
+            }
+            (Some(_), _) => format!("its `fields:` list leaves '{id}' out"),
+            (None, _) => "no coupling joins them".to_string(),
         };
         ctx.push(
             &s.paths[fi].k(key).k("on"),

@@ -1,14 +1,18 @@
 //! Initial populations, targets and the default tolerance.
 //!
 //! Owns: `initial:` (one level id, a map of populations summing to 1, or
-//! `mixture:` / `superposition:` holding such a map),
+//! `mixture:` / `superposition:` holding such a map; in `mixture:` a
+//! manifold or F level spreads its population equally over its levels),
 //! `targets:` (known levels, each once, not initially populated) and the
 //! default spectator `tolerance:`. Must not: know of fields or couplings.
 
 use super::super::locate::KeyPath;
-use super::super::raw::{Id, Initial, InitialValue, Ordered, RawScheme, Scalar};
+use super::super::raw::{
+    level_name_text, Id, Initial, InitialValue, Ordered, RawScheme, Scalar, LEVEL_NAME_KEYS,
+};
 use super::ctx::Ctx;
 use super::levels::Levels;
+use super::names::Named;
 use super::sum_text;
 use crate::model::{InitialKind, DEFAULT_TOLERANCE, POPULATION_SUM_TOLERANCE};
 
@@ -28,9 +32,16 @@ pub(super) fn initial(raw: &RawScheme, ctx: &mut Ctx, levels: &Levels) -> (Vec<f
             }
         }
         Some(Initial::Map(m)) => {
+            if let Some(id) = map_name(ctx, &ip, m, levels) {
+                if let Some(i) = levels.lookup(ctx, &ip, &id) {
+                    initial[i] = 1.0;
+                }
+                return (initial, InitialKind::Coherent);
+            }
             if let Some((kind, inner, path)) = explicit_form(ctx, &ip, m) {
                 if let Some(inner) = inner {
-                    populations(ctx, &path, inner, levels, &mut initial);
+                    let groups = kind == InitialKind::Mixture;
+                    populations(ctx, &path, inner, levels, &mut initial, groups);
                 }
                 return (initial, kind);
             }
@@ -46,7 +57,7 @@ pub(super) fn initial(raw: &RawScheme, ctx: &mut Ctx, levels: &Levels) -> (Vec<f
                     ),
                 }
             }
-            populations(ctx, &ip, &Ordered(plain), levels, &mut initial);
+            populations(ctx, &ip, &Ordered(plain), levels, &mut initial, false);
         }
     }
     (initial, InitialKind::Coherent)
@@ -87,13 +98,39 @@ fn explicit_form<'m>(
     }
 }
 
+/// `initial: { manifold: S, F: 2, m_F: 2 }`: the map is one level's name
+/// (when no level is called `manifold`), as its text form.
+fn map_name(ctx: &mut Ctx, ip: &KeyPath, m: &Ordered<InitialValue>, levels: &Levels) -> Option<Id> {
+    let is_name =
+        m.0.iter().any(|(k, _)| k.0 == "manifold") && levels.index_of("manifold").is_none();
+    if !is_name {
+        return None;
+    }
+    let mut parts: [Option<String>; 3] = [None, None, None];
+    for (k, v) in &m.0 {
+        let slot = LEVEL_NAME_KEYS.iter().position(|x| *x == k.0);
+        match (slot, v) {
+            (Some(slot), InitialValue::Population(Some(v))) => parts[slot] = Some(v.text()),
+            _ => ctx.push(
+                &ip.k(&k.0),
+                "a level name of the keys manifold, F, m_F (each a single value)",
+                format!("'{}'", k.0),
+            ),
+        }
+    }
+    Some(Id(level_name_text(&parts)))
+}
+
 /// A map of level id: population at `ip`, summing to 1, into `initial`.
+/// With `groups` (a mixture), a key naming a group of generated levels (a
+/// manifold, an F level) spreads its population equally over them.
 fn populations(
     ctx: &mut Ctx,
     ip: &KeyPath,
     m: &Ordered<Option<Scalar>>,
     levels: &Levels,
     initial: &mut [f64],
+    groups: bool,
 ) {
     if m.0.is_empty() {
         ctx.push(ip, "a map of level id: population", "an empty map");
@@ -102,22 +139,35 @@ fn populations(
     let mut seen: Vec<usize> = Vec::new();
     for (id, p) in &m.0 {
         let path = ip.k(&id.0);
-        let Some(i) = levels.lookup(ctx, &path, id) else {
-            ok = false;
-            continue;
+        let members = match levels.named(id) {
+            Ok(n @ Named::Group(_)) if groups => levels.members(n),
+            _ => match levels.lookup(ctx, &path, id) {
+                Some(i) => vec![i],
+                None => {
+                    ok = false;
+                    continue;
+                }
+            },
         };
-        if repeated(ctx, &seen, i, &path, "each level once", id) {
+        if members
+            .iter()
+            .any(|&i| repeated(ctx, &seen, i, &path, "each level once", id))
+        {
             ok = false;
             continue;
         }
-        seen.push(i);
+        seen.extend(&members);
         if p.is_none() {
             ctx.missing(&path, "a population (a bare number between 0 and 1)");
             ok = false;
             continue;
         }
         match ctx.population(&path, p) {
-            Some(v) => initial[i] = v,
+            Some(v) => {
+                for &i in &members {
+                    initial[i] = v / members.len() as f64;
+                }
+            }
             None => ok = false,
         }
     }

@@ -11,7 +11,8 @@ use super::super::locate::KeyPath;
 use super::super::raw::{Id, RawScheme};
 use super::super::MAX_LEVELS;
 use super::ctx::{Ctx, Sign};
-use super::{first_valid_id, id_list};
+use super::first_valid_id;
+use super::names::Named;
 use crate::model::Level;
 use crate::units::Kind;
 
@@ -22,19 +23,41 @@ pub(super) struct Levels {
     pub energy_ok: Vec<bool>,
     index: HashMap<String, usize>,
     ids: Vec<String>,
+    /// Ids of manifolds that did not validate: references to the levels
+    /// they would have generated (`<id>_F...`) are not reported again.
+    withheld: Vec<String>,
+    /// Groups of generated levels (`names.rs`).
+    pub groups: Vec<super::names::Group>,
+    /// What each manifold generated (`names.rs`).
+    pub generated: Vec<super::names::Generated>,
 }
 
 impl Levels {
-    /// A level reference inside a list: its index, or a message.
+    /// A reference to one level (an id, or a generated level in map form):
+    /// its index, or a message (a group of generated levels is refused
+    /// here; `mixture:` and `tuned.to` read groups through `named`).
     pub fn lookup(&self, ctx: &mut Ctx, path: &KeyPath, id: &Id) -> Option<usize> {
-        match self.index.get(&id.0) {
-            Some(&i) => Some(i),
-            None => {
+        match self.named(id) {
+            Ok(Named::Level(i)) => Some(i),
+            // An F = 0 level of a manifold resolved into sublevels is one level.
+            Ok(Named::Group(g)) if self.groups[g].members.len() == 1 => {
+                Some(self.groups[g].members[0])
+            }
+            Ok(Named::Group(g)) => {
                 ctx.push(
                     path,
-                    format!("a level id ({})", id_list(&self.ids)),
-                    format!("'{}' (no such level)", id.0),
+                    "one level (a group of generated levels only in mixture: or tuned.to)",
+                    format!(
+                        "'{}', which names {} levels",
+                        id.0,
+                        self.groups[g].members.len()
+                    ),
                 );
+                None
+            }
+            Err(_) if self.of_withheld_manifold(&id.0) => None,
+            Err((expected, found)) => {
+                ctx.push(path, expected, found);
                 None
             }
         }
@@ -83,6 +106,22 @@ impl Levels {
         &self.ids
     }
 
+    /// A manifold that did not validate (its own message says why): the
+    /// levels it would have generated are not reported as unknown.
+    pub fn withhold(&mut self, manifold: &str) {
+        self.withheld.push(manifold.to_string());
+    }
+
+    /// Whether `name` (an id or a name in map form) is a level, F level or
+    /// the manifold of a withheld manifold.
+    pub(super) fn of_withheld_manifold(&self, name: &str) -> bool {
+        let id = super::names::generated_id(name).unwrap_or_else(|| name.to_string());
+        self.withheld.iter().any(|m| {
+            id.strip_prefix(m.as_str())
+                .is_some_and(|r| r.is_empty() || r.starts_with("_F"))
+        })
+    }
+
     /// One more level (a generated one), after those of `levels:`.
     pub fn push(&mut self, level: Level, energy_ok: bool) {
         self.index.insert(level.id.clone(), self.list.len());
@@ -122,6 +161,9 @@ pub(super) fn levels(raw: &RawScheme, ctx: &mut Ctx) -> Option<Levels> {
         energy_ok: Vec::new(),
         index: HashMap::new(),
         ids: Vec::new(),
+        withheld: Vec::new(),
+        groups: Vec::new(),
+        generated: Vec::new(),
     };
     let mut seen_count: HashMap<String, usize> = HashMap::new();
     for (id, lvl) in raw_levels {

@@ -54,10 +54,10 @@ pub(super) struct Generated {
 
 /// Whether `between` names two manifolds (or one: then an error later).
 pub(super) fn names_manifold(rc: &RawCoupling, manifolds: &Manifolds) -> bool {
-    rc.between
-        .as_ref()
-        .is_some_and(|b| b.iter().any(|id| manifolds.get(&id.0).is_some()))
-        || rc.reduced_dipole.is_some()
+    rc.between.as_ref().is_some_and(|b| {
+        b.iter()
+            .any(|id| manifolds.get(&id.0).is_some() || manifolds.failed.contains(&id.0))
+    }) || rc.reduced_dipole.is_some()
         || rc.from_lifetime.is_some()
 }
 
@@ -81,6 +81,13 @@ pub(super) fn read(
         .map(|id| manifolds.list.iter().position(|m| m.id == *id))
         .collect();
     let [Some(a), Some(b)] = found[..] else {
+        if ids
+            .iter()
+            .any(|id| manifolds.failed.iter().any(|f| f == id))
+        {
+            // The manifold's own message says what is wrong.
+            return None;
+        }
         let names: Vec<&str> = manifolds.list.iter().map(|m| m.id.as_str()).collect();
         ctx.push(
             &bp,
@@ -102,7 +109,7 @@ pub(super) fn read(
     if !rules_hold(ctx, &bp, lo, up) {
         return None;
     }
-    let strength = strength(ctx, rc, path, up)?;
+    let strength = strength(ctx, rc, path, lo, up)?;
     let level_keys = [
         ("dipole", &rc.dipole),
         ("einstein_a", &rc.einstein_a),
@@ -162,6 +169,7 @@ fn strength(
     ctx: &mut Ctx,
     rc: &RawCoupling,
     path: &KeyPath,
+    lo: &ManifoldInfo,
     up: &ManifoldInfo,
 ) -> Option<Strength> {
     match (&rc.reduced_dipole, &rc.from_lifetime) {
@@ -205,6 +213,15 @@ fn strength(
                 ),
             }?;
             if up.gamma <= 0.0 {
+                let found = if lo.gamma > 0.0 {
+                    format!(
+                        "'{}' without one; the lifetime is on the lower manifold '{}' (move it to \
+                         '{}', or give reduced_dipole instead)",
+                        up.id, lo.id, up.id
+                    )
+                } else {
+                    format!("'{}' without one (or give reduced_dipole instead)", up.id)
+                };
                 ctx.push(
                     &fp,
                     format!(
@@ -212,7 +229,7 @@ fn strength(
                          the dipole from its decay)",
                         up.id
                     ),
-                    "an upper manifold without one",
+                    found,
                 );
                 return None;
             }

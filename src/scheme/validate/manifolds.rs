@@ -7,7 +7,8 @@
 //! generated levels (`<manifold>_F<F>_m<m_F>`, half-integers as `3/2` and
 //! m_F always signed: `S_F2_m+1`, `S_F2_m0`, `P_F3/2_m-1/2`; with
 //! `resolve: hyperfine`, `<manifold>_F<F>`), and appending those levels
-//! after the ones of `levels:`. Must not: compute energies (the
+//! after the ones of `levels:`, each carrying its [`LevelOrigin`] (manifold,
+//! J, F, m_F, energy from the centre). Must not: compute energies (the
 //! `atom::structure` module diagonalises) or couplings (`couplings.rs`).
 
 use super::super::locate::KeyPath;
@@ -16,6 +17,7 @@ use super::super::MAX_LEVELS;
 use super::ctx::{Ctx, Sign};
 use super::levels::{level, Levels};
 use crate::atom::structure::{hyperfine_levels, sublevels, Manifold, Sublevel};
+use crate::model::LevelOrigin;
 use crate::units::Kind;
 
 /// How a manifold is resolved into levels.
@@ -50,6 +52,8 @@ pub(super) struct ManifoldInfo {
 pub(super) struct Manifolds {
     pub list: Vec<ManifoldInfo>,
     pub field_tesla: f64,
+    /// Ids of the manifolds that did not validate (each with its message).
+    pub failed: Vec<String>,
 }
 
 impl Manifolds {
@@ -137,6 +141,7 @@ pub(super) fn manifolds(raw: &RawScheme, ctx: &mut Ctx, levels: &mut Levels) -> 
     let mut out = Manifolds {
         list: Vec::new(),
         field_tesla: magnetic_field(raw, ctx),
+        failed: Vec::new(),
     };
     let mp = KeyPath::root().k("manifolds");
     let Some(map) = raw.manifolds.as_ref() else {
@@ -159,12 +164,27 @@ pub(super) fn manifolds(raw: &RawScheme, ctx: &mut Ctx, levels: &mut Levels) -> 
             );
             continue;
         }
-        let Some(m) = m.as_ref() else {
-            ctx.missing(&path.k("J"), "J: a non-negative multiple of 1/2");
+        if !super::valid_id(&id.0) {
+            ctx.push(
+                &path,
+                format!("a manifold id: {}", super::ID_RULE),
+                format!("'{}'", id.0),
+            );
             continue;
+        }
+        let info = match m.as_ref() {
+            Some(m) => manifold(ctx, &id.0, m, &path, out.field_tesla, levels),
+            None => {
+                ctx.missing(&path.k("J"), "J: a non-negative multiple of 1/2");
+                None
+            }
         };
-        if let Some(info) = manifold(ctx, &id.0, m, &path, out.field_tesla, levels) {
-            out.list.push(info);
+        match info {
+            Some(info) => out.list.push(info),
+            None => {
+                levels.withhold(&id.0);
+                out.failed.push(id.0.clone());
+            }
         }
     }
     ctx.within(
@@ -273,23 +293,31 @@ fn manifold(
         two_f: Vec::new(),
     };
     let mut generated = Vec::new();
+    let origin = |two_f, two_m_f, offset| LevelOrigin {
+        manifold: id.to_string(),
+        two_j: atom.two_j,
+        two_f,
+        two_m_f,
+        offset,
+    };
     match resolve {
         Resolve::Sublevels => {
             let subs = structure_result(ctx, path, sublevels(&info.atom, field))?;
             for s in &subs {
-                generated.push((sublevel_id(id, s.two_f, s.two_m_f), s.energy));
+                let gid = sublevel_id(id, s.two_f, s.two_m_f);
+                generated.push((gid, origin(s.two_f, Some(s.two_m_f), s.energy)));
             }
             info.sublevels = subs;
         }
         Resolve::Hyperfine => {
             let hf = structure_result(ctx, path, hyperfine_levels(&info.atom))?;
             for h in &hf {
-                generated.push((hyperfine_id(id, h.two_f), h.energy));
+                generated.push((hyperfine_id(id, h.two_f), origin(h.two_f, None, h.energy)));
                 info.two_f.push(h.two_f);
             }
         }
     }
-    for (gid, energy) in generated {
+    for (gid, origin) in generated {
         if levels.index_of(&gid).is_some() {
             ctx.push(
                 path,
@@ -300,9 +328,11 @@ fn manifold(
         }
         let mut l = template.clone();
         l.id = gid;
-        l.omega = template.omega + energy;
+        l.omega = template.omega + origin.offset;
+        l.origin = Some(origin);
         levels.push(l, energy_ok);
     }
+    super::names::register(levels, &info, energy_ok);
     Some(info)
 }
 

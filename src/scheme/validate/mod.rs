@@ -22,6 +22,7 @@ mod levels;
 mod limits;
 mod manifold_couplings;
 mod manifolds;
+mod names;
 mod open;
 mod polarization;
 mod window;
@@ -34,6 +35,8 @@ use crate::model::{Coupling, Field, Model};
 
 pub use crate::model::valid_id;
 pub(crate) use ctx::Ctx;
+pub(crate) use names::{generated_id, map_name_id};
+pub(crate) use polarization::component as polarization_component;
 
 const ID_RULE: &str = "an id made of letters, digits, _ ' + - or /";
 
@@ -111,8 +114,19 @@ pub(crate) fn validate(raw: &RawScheme, ctx: &mut Ctx) -> Option<Model> {
         })
         .collect();
     let polarizations: Vec<Option<[f64; 3]>> = infos.iter().map(|f| f.polarization).collect();
-    let (mut drives, projection) =
-        couplings::drives(ctx, &field_ids.ids, &polarizations, &couplings, &levels)?;
+    let written: Vec<bool> = field_ids
+        .entries
+        .iter()
+        .map(|(_, f, _)| f.is_some_and(|f| f.polarization.is_some()))
+        .collect();
+    let (mut drives, projection) = couplings::drives(
+        ctx,
+        &field_ids.ids,
+        &polarizations,
+        &written,
+        &couplings,
+        &levels,
+    )?;
     let strengths = fields::Strengths {
         fields: &infos,
         paths: field_ids.entries.iter().map(|e| &e.2).collect(),

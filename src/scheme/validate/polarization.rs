@@ -14,7 +14,7 @@ use super::sum_text;
 const EXPECTED: &str = "sigma+, sigma-, pi, or a map of those to intensity fractions summing to 1";
 
 /// The component index (0: sigma-, 1: pi, 2: sigma+) of a name.
-fn component(name: &str) -> Option<usize> {
+pub(crate) fn component(name: &str) -> Option<usize> {
     match name.trim() {
         "sigma-" | "σ-" | "σ−" => Some(0),
         "pi" | "π" => Some(1),
