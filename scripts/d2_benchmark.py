@@ -9,11 +9,24 @@ species, illustrative numbers only), then solves it twice, side by side:
       the whole process: start, parse, solve, estimate, report), best of N;
   (b) qutip.mesolve of the same Hamiltonian and collapse operators in the
       same rotating frame at the same rtol/atol, timed around the call,
-      best of N;
+      best of N, per integration method (adams is mesolve's default); each
+      call runs in a forked child that is killed after --timeout seconds
+      (reported as "did not finish"). The operators are stored as qutip CSR
+      (what qutip's own operator constructors give); --qutip-data dense
+      keeps qutip.Qobj(ndarray)'s dense storage, whose Liouvillian product
+      costs about 12 ms here against 4 us for CSR;
+  (c) a reference without step control: the window is one constant
+      generator (a rectangular pulse that fills it), so rho(T) = exp(L T)
+      rho(0), by scipy.sparse.linalg.expm_multiply;
 
-compares the final populations (largest absolute difference) and prints
-the speed ratio. Both runs are pinned to one core (CPU 0, through
-sched_setaffinity, inherited by the levelplan process) unless --all-cores.
+compares the final populations (largest absolute difference between the
+tools and of each against the reference) and prints the speed ratio.
+--rtol/--atol set both tools' tolerances (levelplan reads them from a
+temporary copy of the scheme; the checked-in file keeps the defaults).
+levelplan's time is split by also timing `inspect` (start-up and parse)
+and `evolve --samples 2` (parse and one propagation, no estimate).
+Everything is pinned to one core (--cpu, default 0, through
+sched_setaffinity, inherited by the child processes) unless --all-cores.
 
 Set-up (pinned versions, as scripts/open_reference.py; the script refuses
 other versions unless --allow-other-versions is given):
@@ -22,6 +35,7 @@ other versions unless --allow-other-versions is given):
     /tmp/qv/bin/pip install qutip==5.3.1 numpy==2.4.6 scipy==1.17.1 sympy==1.14.0
     cargo build --release
     /tmp/qv/bin/python scripts/d2_benchmark.py                 # write, run, compare
+    /tmp/qv/bin/python scripts/d2_benchmark.py --rtol 1e-6 --atol 1e-8 --timeout 600
     /tmp/qv/bin/python scripts/d2_benchmark.py --write-only    # only the YAML
     /tmp/qv/bin/python scripts/d2_benchmark.py --check         # the YAML is up to date
 
@@ -96,8 +110,9 @@ PULSE = "1 us"
 # the same numbers.
 RTOL = 1e-10
 ATOL = 1e-12
-# qutip's mesolve methods tried (the first is qutip's default).
-QUTIP_METHODS = ["adams", "bdf", "dop853", "vern9"]
+# qutip's mesolve methods tried (the first is qutip's default; diag, one
+# eigendecomposition of the Liouvillian, is left to --methods: 31 s here).
+QUTIP_METHODS = ["adams", "bdf", "lsoda", "dop853", "vern7", "vern9"]
 
 TWO_PI = 2.0 * math.pi
 
@@ -183,7 +198,7 @@ def build():
     return lv, couplings, branching, ref
 
 
-def yaml_text(lv, couplings, branching, ref):
+def yaml_text(lv, couplings, branching, ref, rtol=RTOL, atol=ATOL):
     hdr = f"""# Illustrative, invented scenario -- not data of any real species.
 #
 # A benchmark scheme: the 24 hyperfine-Zeeman sublevels of the D2-like line
@@ -246,8 +261,8 @@ levels:
     out.append("")
     out.append("solver:")
     out.append("  dynamics: density_matrix")
-    out.append(f"  rtol: {RTOL!r}")
-    out.append(f"  atol: {ATOL!r}")
+    out.append(f"  rtol: {rtol!r}")
+    out.append(f"  atol: {atol!r}")
     return "\n".join(out) + "\n"
 
 
@@ -305,29 +320,111 @@ def best_of(runs, f):
     return min(times), times, value
 
 
-def run_levelplan(binary, runs):
+def run_levelplan(binary, scheme, runs, command="vet"):
+    """Wall clock of one levelplan process (best of runs). command: vet
+    (everything; returns its JSON), inspect (start-up, parse, drive table; no
+    propagation) or evolve (parse and one propagation, two samples, no
+    estimate)."""
+    argv = {"vet": ["vet", str(scheme), "--format", "json"],
+            "inspect": ["inspect", str(scheme), "--format", "json"],
+            "evolve": ["evolve", str(scheme), "--samples", "2"]}[command]
+
     def once():
-        out = subprocess.run([str(binary), "vet", str(SCHEME), "--format", "json"],
-                             capture_output=True, text=True)
+        out = subprocess.run([str(binary), *argv], capture_output=True, text=True)
         if out.returncode not in (0, 3):
-            raise SystemExit(f"levelplan exit {out.returncode}\n{out.stderr}")
-        return json.loads(out.stdout)
+            raise SystemExit(f"levelplan {command} exit {out.returncode}\n{out.stderr}")
+        return json.loads(out.stdout) if command == "vet" else None
     return best_of(runs, once)
 
 
-def run_qutip(model, method, runs):
+def reference_populations(model, t_end):
+    """The window-end populations without a step-size controller: the
+    generator is constant over the whole window (one rectangular pulse that
+    fills it), so rho(T) = exp(L T) rho(0), by scipy's expm_multiply on
+    qutip's sparse Liouvillian (column-stacked rho)."""
+    import numpy as np
+    import qutip
+    from scipy.sparse import csr_matrix
+    from scipy.sparse.linalg import expm_multiply
+
+    h, cops, rho0 = model
+    lv = qutip.liouvillian(h, cops).to("csr").data.as_scipy()
+    v0 = qutip.operator_to_vector(rho0).full().ravel().astype(complex)
+    v = expm_multiply(csr_matrix(lv) * t_end, v0)
+    n = rho0.shape[0]
+    return np.real(np.diag(v.reshape(n, n, order="F")))
+
+
+def _qutip_child(model, opts, t_end, conn):
+    """One timed mesolve in a forked child (so that a run past the timeout
+    can be killed); sends (seconds, populations) through conn."""
     import numpy as np
     import qutip
 
     h, cops, rho0 = model
-    t_end = float(Fraction(PULSE.split()[0])) * 1e-6
-    opts = {"method": method, "atol": ATOL, "rtol": RTOL, "nsteps": 10**9,
-            "progress_bar": False}
+    t0 = time.perf_counter()
+    res = qutip.mesolve(h, rho0, [0.0, t_end], c_ops=cops, options=opts)
+    dt = time.perf_counter() - t0
+    conn.send((dt, np.real(np.diag(res.states[-1].full())).tolist()))
+    conn.close()
 
-    def once():
-        res = qutip.mesolve(h, rho0, [0.0, t_end], c_ops=cops, options=opts)
-        return np.real(np.diag(res.states[-1].full()))
-    return best_of(runs, once)
+
+def run_qutip(model, method, runs, rtol, atol, timeout):
+    """Best of runs mesolve calls of one method, each in a child process
+    killed after timeout seconds. Returns (best, times, populations) or
+    (None, times, None) when a run did not finish."""
+    import multiprocessing as mp
+
+    t_end = float(Fraction(PULSE.split()[0])) * 1e-6
+    opts = {"method": method, "progress_bar": False}
+    if method != "diag":  # diag: one eigendecomposition of L, no tolerances
+        opts.update({"atol": atol, "rtol": rtol, "nsteps": 10**9})
+    ctx = mp.get_context("fork")
+    times, pops = [], None
+    for _ in range(runs):
+        parent, child = ctx.Pipe(duplex=False)
+        proc = ctx.Process(target=_qutip_child, args=(model, opts, t_end, child))
+        proc.start()
+        child.close()
+        ready = parent.poll(timeout)
+        if not ready:
+            proc.kill()
+            proc.join()
+            return None, times, None
+        dt, pops = parent.recv()
+        proc.join()
+        times.append(dt)
+    return min(times), times, pops
+
+
+def scheme_with_tolerances(data, rtol, atol):
+    """The checked-in scheme when the tolerances are its own, otherwise a
+    temporary copy with the solver tolerances changed (the same text
+    otherwise, written by the same function)."""
+    if (rtol, atol) == (RTOL, ATOL):
+        return SCHEME
+    import tempfile
+
+    tmp = Path(tempfile.mkdtemp(prefix="d2_benchmark_")) / f"d2_sublevels_24_rtol{rtol:g}.yaml"
+    tmp.write_text(yaml_text(*data, rtol=rtol, atol=atol))
+    return tmp
+
+
+def measure_levelplan(args, scheme, ids):
+    t_lp, all_lp, rep = run_levelplan(args.binary, scheme, args.runs)
+    lp = {x["id"]: x["window_end_population"] for x in rep["levels"]}
+    lp_settled = {x["id"]: x["settled_population"] for x in rep["levels"]}
+    t_in, _, _ = run_levelplan(args.binary, scheme, args.runs, "inspect")
+    t_ev, _, _ = run_levelplan(args.binary, scheme, args.runs, "evolve")
+    sol = rep["solver"]
+    print(f"levelplan vet: best {t_lp:.3f} s of {[round(t, 3) for t in all_lp]} "
+          f"(rtol {sol['rtol']:g}, atol {sol['atol']:g}, {sol['method']}, {sol['steps']} steps, "
+          f"{sol['evaluations']} evaluations, norm error {rep['norm_error']:.2e}); "
+          f"split: inspect (start-up, parse) {t_in:.3f} s, evolve --samples 2 "
+          f"(parse + propagation) {t_ev:.3f} s")
+    return {"best_s": t_lp, "times_s": all_lp, "solver": sol, "norm_error": rep["norm_error"],
+            "inspect_best_s": t_in, "evolve_best_s": t_ev,
+            "populations": [lp[k] for k in ids]}, lp, lp_settled
 
 
 def main():
@@ -339,8 +436,20 @@ def main():
     ap.add_argument("--runs", type=int, default=3, help="best of N (levelplan)")
     ap.add_argument("--qutip-runs", type=int, default=3, help="best of N (each qutip method)")
     ap.add_argument("--methods", default=",".join(QUTIP_METHODS),
-                    help="qutip mesolve methods, comma-separated (the first is the reference)")
+                    help="qutip mesolve methods, comma-separated (the first is the reference "
+                         "of the printed ratio; 'diag' takes no tolerances)")
+    ap.add_argument("--rtol", type=float, default=RTOL,
+                    help="relative tolerance of both tools (levelplan: solver.rtol of a "
+                         "temporary copy of the scheme)")
+    ap.add_argument("--atol", type=float, default=ATOL, help="absolute tolerance of both tools")
+    ap.add_argument("--timeout", type=float, default=600.0,
+                    help="seconds one qutip run may take before it is killed and reported "
+                         "as not finished")
+    ap.add_argument("--qutip-data", choices=["csr", "dense"], default="csr",
+                    help="qutip's storage of H and the collapse operators (dense is "
+                         "qutip.Qobj(ndarray)'s default and far slower here)")
     ap.add_argument("--all-cores", action="store_true", help="do not pin to CPU 0")
+    ap.add_argument("--cpu", type=int, default=0, help="the core to pin to")
     ap.add_argument("--json", metavar="FILE", help="also write the measurements to FILE")
     ap.add_argument("--allow-other-versions", action="store_true")
     args = ap.parse_args()
@@ -361,46 +470,59 @@ def main():
     print("wrote", SCHEME.relative_to(ROOT))
     if args.write_only:
         return
+    scheme = scheme_with_tolerances(data, args.rtol, args.atol)
+    if scheme != SCHEME:
+        print("timing", scheme, f"(rtol {args.rtol:g}, atol {args.atol:g})")
 
     if not args.all_cores and hasattr(os, "sched_setaffinity"):
-        os.sched_setaffinity(0, {0})  # inherited by the levelplan process
+        os.sched_setaffinity(0, {args.cpu})  # inherited by every child process
     cores = sorted(os.sched_getaffinity(0)) if hasattr(os, "sched_getaffinity") else None
     lv = data[0]
     ids = [x[0] for x in lv]
 
-    t_lp, all_lp, rep = run_levelplan(args.binary, args.runs)
-    lp = {x["id"]: x["window_end_population"] for x in rep["levels"]}
-    lp_settled = {x["id"]: x["settled_population"] for x in rep["levels"]}
-    print(f"levelplan vet: best {t_lp:.3f} s of {[round(t, 3) for t in all_lp]} "
-          f"(solver {rep['solver']}, norm error {rep['norm_error']:.2e}, "
-          f"lost {rep['lost_population']:.2e})")
-
-    model = qutip_model(*data)
+    lp_doc, lp, lp_settled = measure_levelplan(args, scheme, ids)
+    h, cops, rho0 = qutip_model(*data)
+    model = (h.to(args.qutip_data), [c.to(args.qutip_data) for c in cops], rho0)
+    t_end = float(Fraction(PULSE.split()[0])) * 1e-6
+    ref_pops = reference_populations(model, t_end)
+    err_lp = max(abs(lp[k] - ref_pops[i]) for i, k in enumerate(ids))
+    print(f"reference exp(L T) rho0 (scipy expm_multiply): max |levelplan - reference| {err_lp:.2e}")
     results = {}
     for method in args.methods.split(","):
-        t_q, all_q, pops = run_qutip(model, method, args.qutip_runs)
+        t_q, all_q, pops = run_qutip(model, method, args.qutip_runs, args.rtol, args.atol,
+                                     args.timeout)
+        if t_q is None:
+            results[method] = {"best_s": None, "times_s": all_q,
+                               "note": f"did not finish in {args.timeout:g} s"}
+            print(f"qutip mesolve ({method}): did not finish in {args.timeout:g} s "
+                  f"(finished runs: {[round(t, 3) for t in all_q]})")
+            continue
         q = {k: float(pops[i]) for i, k in enumerate(ids)}
         diff = max(abs(lp[k] - q[k]) for k in ids)
+        err_q = max(abs(q[k] - ref_pops[i]) for i, k in enumerate(ids))
         q_settled = settle(q, data[2])
         diff_s = max(abs(lp_settled[k] - q_settled[k]) for k in ids)
-        results[method] = {"best_s": t_q, "times_s": all_q, "ratio": t_q / t_lp,
+        results[method] = {"best_s": t_q, "times_s": all_q, "ratio": t_q / lp_doc["best_s"],
                            "max_abs_window_end_population_difference": diff,
-                           "max_abs_settled_population_difference": diff_s}
+                           "max_abs_settled_population_difference": diff_s,
+                           "max_abs_error_against_reference": err_q}
         print(f"qutip mesolve ({method}): best {t_q:.3f} s of {[round(t, 3) for t in all_q]}, "
               f"max |levelplan - qutip| window end {diff:.2e}, settled {diff_s:.2e}, "
-              f"ratio {t_q / t_lp:.1f}x")
-    ref = args.methods.split(",")[0]
-    print(f"\nspeed ratio against mesolve's default ({ref}): {results[ref]['ratio']:.1f}x; "
-          f"levelplan vet {t_lp:.3f} s on cores {cores}")
+              f"max |qutip - reference| {err_q:.2e}, ratio {t_q / lp_doc['best_s']:.1f}x")
+    first = args.methods.split(",")[0]
+    if results[first].get("ratio") is not None:
+        print(f"\nspeed ratio against mesolve ({first}): {results[first]['ratio']:.1f}x; "
+              f"levelplan vet {lp_doc['best_s']:.3f} s on cores {cores}")
     print("settled populations (levelplan):",
           {k: round(lp_settled[k], 6) for k in ids if lp_settled[k] > 1e-5})
     if args.json:
         Path(args.json).write_text(json.dumps({
-            "scheme": str(SCHEME.relative_to(ROOT)),
-            "levelplan": {"best_s": t_lp, "times_s": all_lp, "solver": rep["solver"],
-                          "norm_error": rep["norm_error"]},
-            "qutip": results, "rtol": RTOL, "atol": ATOL, "cores": cores,
-            "versions": v,
+            "scheme": str(SCHEME.relative_to(ROOT)), "levelplan": lp_doc,
+            "reference": {"method": "scipy.sparse.linalg.expm_multiply of the Liouvillian",
+                          "populations": list(map(float, ref_pops)),
+                          "max_abs_levelplan_error": err_lp},
+            "qutip": results, "qutip_data": args.qutip_data, "rtol": args.rtol,
+            "atol": args.atol, "timeout_s": args.timeout, "cores": cores, "versions": v,
         }, indent=2) + "\n")
 
 
