@@ -13,6 +13,7 @@ mod demo_schemes;
 mod estimate;
 mod estimate_rates;
 mod estimate_remedy;
+mod manifold_hand_typed;
 mod manifold_reference;
 mod manifold_scans;
 mod open_reference;
