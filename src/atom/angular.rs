@@ -35,7 +35,8 @@
 //! common denominator (`angular/racah.rs`): one multiplication and one exact
 //! division by a machine word per term.
 //!
-//! Speed: no memoisation is needed for atomic lines. The 392 coefficients of
+//! Speed: this module memoises nothing (`atom::dipole` keeps the few
+//! coefficients of one line it needs many times). The 392 coefficients of
 //! a 24-sublevel 87Rb D2 line (every sigma/pi Clebsch-Gordan coefficient of
 //! F = 1, 2 -> F' = 0..3 and the 6j symbols) take about 0.13-0.24 ms in a
 //! release build (`angular/tests/published.rs::d2_line_coefficients_are_fast`;

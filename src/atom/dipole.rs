@@ -49,6 +49,52 @@ pub struct Transition {
 /// sums of products of O(1) numbers; rounding leaves ~1e-16).
 const ZERO: f64 = 1e-12;
 
+/// The coefficients <J' m_J'; 1 -q | J m_J> of one line, each evaluated
+/// once, on first use: a sublevel pair sums over its components, so the
+/// same few values (6 nonzero ones for J = 1/2 -> 3/2) recur hundreds of
+/// times, and the exact evaluation costs microseconds per call
+/// (docs/performance.md, "Generated against hand-typed sublevels").
+struct CgTable {
+    two_j: i32,
+    two_jp: i32,
+    values: Vec<Option<f64>>,
+}
+
+impl CgTable {
+    fn new(two_j: i32, two_jp: i32) -> CgTable {
+        let count = |two: i32| usize::try_from(two + 1).unwrap_or(0);
+        CgTable {
+            two_j,
+            two_jp,
+            values: vec![None; count(two_jp) * 3 * count(two_j)],
+        }
+    }
+
+    /// Where <J' m_J'; 1 -q | J m_J> is kept, if the arguments are in range.
+    fn index(&self, two_m_jp: i32, two_q: i32, two_m_j: i32) -> Option<usize> {
+        let slot = |two_m: i32, two: i32| -> Option<usize> {
+            let k = two_m + two;
+            (k % 2 == 0 && (0..=2 * two).contains(&k))
+                .then(|| usize::try_from(k / 2).ok())
+                .flatten()
+        };
+        let a = slot(two_m_jp, self.two_jp)?;
+        let b = slot(two_q, 2)?;
+        let c = slot(two_m_j, self.two_j)?;
+        let width = usize::try_from(self.two_j + 1).ok()?;
+        Some((a * 3 + b) * width + c)
+    }
+
+    /// <J' m_J'; 1 -q | J m_J> (arguments doubled).
+    fn get(&mut self, two_m_jp: i32, two_q: i32, two_m_j: i32) -> f64 {
+        let compute = || clebsch_gordan(self.two_jp, two_m_jp, 2, -two_q, self.two_j, two_m_j);
+        match self.index(two_m_jp, two_q, two_m_j) {
+            Some(k) if k < self.values.len() => *self.values[k].get_or_insert_with(compute),
+            _ => compute(),
+        }
+    }
+}
+
 /// Every dipole-allowed transition between the sublevels of a lower
 /// manifold (angular momentum two_j/2) and an upper one (two_jp/2).
 pub fn transitions(
@@ -57,6 +103,7 @@ pub fn transitions(
     two_jp: i32,
     upper: &[Sublevel],
 ) -> Vec<Transition> {
+    let mut table = CgTable::new(two_j, two_jp);
     let mut out = Vec::new();
     for (gi, g) in lower.iter().enumerate() {
         for (ei, e) in upper.iter().enumerate() {
@@ -71,7 +118,7 @@ pub fn transitions(
                     if cg.two_m_i != ce.two_m_i {
                         continue;
                     }
-                    let w = clebsch_gordan(two_jp, ce.two_m_j, 2, -two_q, two_j, cg.two_m_j);
+                    let w = table.get(ce.two_m_j, two_q, cg.two_m_j);
                     sum += cg.amplitude * ce.amplitude * w;
                 }
             }

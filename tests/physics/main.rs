@@ -14,6 +14,7 @@ mod estimate;
 mod estimate_rates;
 mod estimate_remedy;
 mod estimate_scatter_remedy;
+mod manifold_hand_typed;
 mod manifold_reference;
 mod manifold_scans;
 mod open_reference;
