@@ -6,15 +6,17 @@
 //! (renderers do).
 
 use super::args::{EvolveArgs, InspectArgs, MergeArgs, TuneArgs, VetArgs};
+use super::bounds;
+use super::guard::distinct;
 use super::io::{load, render_to_vec, write_plot, Sink};
-use levelplan::error::{Error, EXIT_OK, EXIT_TOLERANCE};
+use levelplan::error::{Error, EXIT_FAILED, EXIT_OK, EXIT_TOLERANCE};
 use levelplan::pipeline::{self, study, VetOptions};
 use levelplan::render::{self, evolve as evolve_fmt, scan as scan_fmt, scan_plot};
 use levelplan::scan;
-use std::fs;
 
 /// `inspect`: the dry run.
 pub fn inspect(a: InspectArgs) -> Result<i32, Error> {
+    distinct(&[&a.scheme.scheme], &[("--out", a.output.out.as_deref())])?;
     let (model, prov) = load(&a.scheme.scheme)?;
     let report = pipeline::inspect(&model, prov);
     let rows = a.output.sublevel_rows();
@@ -33,6 +35,7 @@ pub fn vet(a: VetArgs) -> Result<i32, Error> {
         .with_step_budget(a.step_budget.step_budget);
     pipeline::check_tolerance(opts.tolerance)?;
     pipeline::check_population("--goal", opts.goal)?;
+    distinct(&[&a.scheme.scheme], &[("--out", a.output.out.as_deref())])?;
     let (model, prov) = load(&a.scheme.scheme)?;
     let rep = pipeline::vet(&model, prov, &opts)?;
     let rows = a.output.sublevel_rows();
@@ -46,6 +49,10 @@ pub fn vet(a: VetArgs) -> Result<i32, Error> {
 /// `evolve`: populations against time as CSV, optionally an SVG.
 pub fn evolve(a: EvolveArgs) -> Result<i32, Error> {
     pipeline::evolve::check_samples(a.samples, 0, false)?;
+    distinct(
+        &[&a.scheme.scheme],
+        &[("--out", a.out.as_deref()), ("--plot", a.plot.as_deref())],
+    )?;
     let (model, prov) = load(&a.scheme.scheme)?;
     pipeline::evolve::check_samples(a.samples, model.levels().len(), a.plot.is_some())?;
     let evo = pipeline::evolve_with_budget(&model, a.samples, a.step_budget.step_budget)?;
@@ -81,11 +88,33 @@ pub fn tune(a: TuneArgs) -> Result<i32, Error> {
         xtol: a.xtol,
     };
     req.check()?;
-    let pool = scan::thread_pool(a.jobs.jobs)?;
+    let pool = scan::thread_pool(bounds::jobs(a.jobs.jobs))?;
     let study =
         super::scan::read_study(&a.scheme.scheme)?.with_step_budget(a.step_budget.step_budget);
-    let report = study::tune(&study, &req, &pool)?;
-    Sink::Stdout { color: false }.emit(scan_fmt::tune_text(&report).as_bytes())?;
+    let Some(limit) = a.time_limit.time_limit else {
+        return tune_found(&study::tune(&study, &req, &pool)?);
+    };
+    // The search runs on its own thread; when the limit passes first, the
+    // run ends here (the process exit stops the search: tune writes no file).
+    let (tx, rx) = std::sync::mpsc::channel();
+    std::thread::spawn(move || {
+        let _ = tx.send(study::tune(&study, &req, &pool));
+    });
+    match rx.recv_timeout(limit) {
+        Ok(report) => tune_found(&report?),
+        Err(_) => {
+            eprintln!(
+                "levelplan: time limit of {} s reached before tune finished; no value is reported",
+                limit.as_secs_f64()
+            );
+            Ok(EXIT_FAILED)
+        }
+    }
+}
+
+/// Print a tune report; exit status 0 when a value was found.
+fn tune_found(report: &scan::TuneReport) -> Result<i32, Error> {
+    Sink::Stdout { color: false }.emit(scan_fmt::tune_text(report).as_bytes())?;
     Ok(if report.found.is_some() {
         EXIT_OK
     } else {
@@ -95,22 +124,15 @@ pub fn tune(a: TuneArgs) -> Result<i32, Error> {
 
 /// `merge`: join the part files of a sharded scan; optionally plot.
 pub fn merge(a: MergeArgs) -> Result<i32, Error> {
+    let parts: Vec<&std::path::Path> = a.parts.iter().map(|p| p.as_path()).collect();
+    distinct(
+        &parts,
+        &[("--out", a.out.as_deref()), ("--plot", a.plot.as_deref())],
+    )?;
     let texts = a
         .parts
         .iter()
-        .map(|p| {
-            fs::read(p)
-                .map_err(|source| Error::Input {
-                    path: p.clone(),
-                    source,
-                })
-                .and_then(|b| {
-                    String::from_utf8(b).map_err(|_| Error::BadArgument {
-                        what: "merge".into(),
-                        message: format!("{} is not UTF-8 text", p.display()),
-                    })
-                })
-        })
+        .map(|p| bounds::read_part(p))
         .collect::<Result<Vec<String>, Error>>()?;
     let bytes = scan::merge::merge_texts(&a.parts, &texts)?;
     let svg = match &a.plot {
