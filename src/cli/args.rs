@@ -169,7 +169,7 @@ pub struct StepBudgetArg {
 pub struct TimeLimitArg {
     /// Stop cleanly after this long (90s, 15m, 1.5h; a bare number is seconds) with exit
     /// status 1: a scan keeps the rows finished so far (with --out in .FILE.partial, which
-    /// --resume continues); tune reports no value.
+    /// --resume continues); vet, evolve and tune write nothing.
     #[arg(long, value_name = "DURATION", value_parser = super::bounds::parse_duration)]
     pub time_limit: Option<std::time::Duration>,
 }
@@ -204,6 +204,8 @@ pub struct VetArgs {
     #[command(flatten)]
     pub step_budget: StepBudgetArg,
     #[command(flatten)]
+    pub time_limit: TimeLimitArg,
+    #[command(flatten)]
     pub output: ReportOutput,
 }
 
@@ -230,6 +232,8 @@ pub struct EvolveArgs {
     pub log: bool,
     #[command(flatten)]
     pub step_budget: StepBudgetArg,
+    #[command(flatten)]
+    pub time_limit: TimeLimitArg,
 }
 
 #[derive(Debug, Args)]

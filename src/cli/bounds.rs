@@ -5,7 +5,7 @@
 //! Owns: these limits and their notes on stderr. Must not: evaluate points
 //! or format rows.
 
-use levelplan::error::Error;
+use levelplan::error::{Error, EXIT_FAILED};
 use std::io::Read;
 use std::path::Path;
 use std::time::{Duration, Instant};
@@ -66,6 +66,42 @@ pub fn deadline(limit: Option<Duration>) -> Option<Instant> {
 /// Whether the deadline has passed.
 pub fn past(deadline: Option<Instant>) -> bool {
     deadline.is_some_and(|d| Instant::now() >= d)
+}
+
+/// Run `work` under a wall-clock limit: without one, on this thread; with
+/// one, on a worker thread, giving up (None) when the limit passes first.
+/// The caller then ends the run, and the process exit stops the worker,
+/// which writes no file (the callers write only after `work` returns).
+pub fn within<T: Send + 'static>(
+    limit: Option<Duration>,
+    work: impl FnOnce() -> T + Send + 'static,
+) -> Option<T> {
+    let Some(limit) = limit else {
+        return Some(work());
+    };
+    let (tx, rx) = std::sync::mpsc::channel();
+    let worker = std::thread::spawn(move || {
+        let _ = tx.send(work());
+    });
+    match rx.recv_timeout(limit) {
+        Ok(v) => Some(v),
+        Err(std::sync::mpsc::RecvTimeoutError::Timeout) => None,
+        // The worker ended without a result: it panicked; pass that on.
+        Err(std::sync::mpsc::RecvTimeoutError::Disconnected) => match worker.join() {
+            Err(panic) => std::panic::resume_unwind(panic),
+            Ok(()) => None,
+        },
+    }
+}
+
+/// Say that `--time-limit` ended `command` before it finished; the exit
+/// status (1: no result to vouch for).
+pub fn ran_out(limit: Option<Duration>, command: &str) -> i32 {
+    eprintln!(
+        "levelplan: time limit of {} s reached before {command} finished; no result is written",
+        limit.unwrap_or_default().as_secs_f64()
+    );
+    EXIT_FAILED
 }
 
 /// Read one part file for `merge`: a regular file (links followed) of at

@@ -9,7 +9,7 @@ use super::args::{EvolveArgs, InspectArgs, MergeArgs, TuneArgs, VetArgs};
 use super::bounds;
 use super::guard::distinct;
 use super::io::{load, render_to_vec, write_plot, Sink};
-use levelplan::error::{Error, EXIT_FAILED, EXIT_OK, EXIT_TOLERANCE};
+use levelplan::error::{Error, EXIT_OK, EXIT_TOLERANCE};
 use levelplan::pipeline::{self, study, VetOptions};
 use levelplan::render::{self, evolve as evolve_fmt, scan as scan_fmt, scan_plot};
 use levelplan::scan;
@@ -37,7 +37,11 @@ pub fn vet(a: VetArgs) -> Result<i32, Error> {
     pipeline::check_population("--goal", opts.goal)?;
     distinct(&[&a.scheme.scheme], &[("--out", a.output.out.as_deref())])?;
     let (model, prov) = load(&a.scheme.scheme)?;
-    let rep = pipeline::vet(&model, prov, &opts)?;
+    let limit = a.time_limit.time_limit;
+    let Some(rep) = bounds::within(limit, move || pipeline::vet(&model, prov, &opts)) else {
+        return Ok(bounds::ran_out(limit, "vet"));
+    };
+    let rep = rep?;
     let rows = a.output.sublevel_rows();
     let sink = Sink::new(a.output.out, a.output.color);
     let exporter = render::exporter_with(a.output.format.into(), sink.color(), rows);
@@ -55,7 +59,15 @@ pub fn evolve(a: EvolveArgs) -> Result<i32, Error> {
     )?;
     let (model, prov) = load(&a.scheme.scheme)?;
     pipeline::evolve::check_samples(a.samples, model.levels().len(), a.plot.is_some())?;
-    let evo = pipeline::evolve_with_budget(&model, a.samples, a.step_budget.step_budget)?;
+    let model = std::sync::Arc::new(model);
+    let (m, samples, budget) = (model.clone(), a.samples, a.step_budget.step_budget);
+    let limit = a.time_limit.time_limit;
+    let Some(evo) = bounds::within(limit, move || {
+        pipeline::evolve_with_budget(&m, samples, budget)
+    }) else {
+        return Ok(bounds::ran_out(limit, "evolve"));
+    };
+    let evo = evo?;
     let ids: Vec<String> = model.levels().iter().map(|l| l.id.clone()).collect();
     let csv = evolve_fmt::csv(&prov, &ids, &evo);
     if let Some(path) = &a.plot {
@@ -91,24 +103,10 @@ pub fn tune(a: TuneArgs) -> Result<i32, Error> {
     let pool = scan::thread_pool(bounds::jobs(a.jobs.jobs))?;
     let study =
         super::scan::read_study(&a.scheme.scheme)?.with_step_budget(a.step_budget.step_budget);
-    let Some(limit) = a.time_limit.time_limit else {
-        return tune_found(&study::tune(&study, &req, &pool)?);
-    };
-    // The search runs on its own thread; when the limit passes first, the
-    // run ends here (the process exit stops the search: tune writes no file).
-    let (tx, rx) = std::sync::mpsc::channel();
-    std::thread::spawn(move || {
-        let _ = tx.send(study::tune(&study, &req, &pool));
-    });
-    match rx.recv_timeout(limit) {
-        Ok(report) => tune_found(&report?),
-        Err(_) => {
-            eprintln!(
-                "levelplan: time limit of {} s reached before tune finished; no value is reported",
-                limit.as_secs_f64()
-            );
-            Ok(EXIT_FAILED)
-        }
+    let limit = a.time_limit.time_limit;
+    match bounds::within(limit, move || study::tune(&study, &req, &pool)) {
+        Some(report) => tune_found(&report?),
+        None => Ok(bounds::ran_out(limit, "tune")),
     }
 }
 

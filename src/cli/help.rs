@@ -74,7 +74,8 @@ n sublevels above their tolerance); --sublevels shows each. JSON and CSV list ev
 
 Exit status: 0 every spectator within tolerance, 3 at least one above or (with --goal) a target
 below the goal (the report is still printed),
-2 bad input (scheme file or option), 1 a run that could not vouch for its result or output not written.",
+2 bad input (scheme file or option), 1 a run that could not vouch for its result, output not written or
+--time-limit passed first.",
         true,
     )
 }
@@ -91,7 +92,7 @@ time_s,<level ids> and one row per sample: the absolute scheme time in seconds a
 last row is the final state.
 
 Exit status: 0 written, 2 bad input (scheme file or option), 1 a run that could not vouch for its result
-(step budget, norm error, non-finite value) or output not written.",
+(step budget, norm error, non-finite value), output not written or --time-limit passed first.",
         false,
     )
 }

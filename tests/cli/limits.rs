@@ -233,18 +233,19 @@ fn evolve_sample_limit() {
     );
 }
 
+/// A drive 900 GHz off resonance (inside the 1 THz cutoff) over 1 ms:
+/// about 1e9 periods of the fastest frequency.
+const FAR_DRIVE: &str = "levels:\n  g: {energy: 0 cm^-1}\n  e: {energy: 12000 cm^-1}\ninitial: g\n\
+    couplings:\n  - {between: [g, e], dipole: 1}\n\
+    fields:\n  far:\n    tuned: {to: [g, e], detuning: 900 GHz}\n    \
+    rabi: {on: [g, e], value: 1 MHz}\n    \
+    envelope: {shape: gaussian, center: 0.5 ms, fwhm: 0.2 ms}\n";
+
 #[test]
 fn step_budget_fails_fast_with_its_cause() {
-    // A drive 900 GHz off resonance (inside the 1 THz cutoff) over 1 ms:
-    // about 1e9 periods of the fastest frequency.
-    let text = "levels:\n  g: {energy: 0 cm^-1}\n  e: {energy: 12000 cm^-1}\ninitial: g\n\
-        couplings:\n  - {between: [g, e], dipole: 1}\n\
-        fields:\n  far:\n    tuned: {to: [g, e], detuning: 900 GHz}\n    \
-        rabi: {on: [g, e], value: 1 MHz}\n    \
-        envelope: {shape: gaussian, center: 0.5 ms, fwhm: 0.2 ms}\n";
     let (err, secs) = refused(
         "budget",
-        text.as_bytes(),
+        FAR_DRIVE.as_bytes(),
         &["vet"],
         1,
         &[
@@ -418,19 +419,20 @@ fn jobs_beyond_the_cores_are_capped_with_a_note() {
 
 /// `--time-limit`: a scan stops starting points at the limit, keeps the
 /// rows it finished in the partial file (exit 1, the message says how many
-/// and how to continue) and `--resume` continues from them; `tune` ends
-/// with exit 1 and no value. Bad durations are refused (exit 2).
+/// and how to continue) and `--resume` continues from them; `tune`, `vet`
+/// and `evolve` end with exit 1 and write nothing. Bad durations are
+/// refused (exit 2).
 #[test]
 fn a_time_limit_ends_a_long_run_cleanly() {
     let fixture = scan_fixture();
-    let dir = scratch("time-limit");
+    let dir = scratch("time-limit-run");
     let out = dir.join("long.csv");
     let partial = dir.join(".long.csv.partial");
     let vary = "fields.probe.tuned.detuning=-20MHz..20MHz:2000000";
     let run = |extra: &[&str]| {
         let t = Instant::now();
         let o = bin()
-            .args(["scan", &fixture, "--vary", vary, "--jobs", "2", "--out"])
+            .args(["scan", &fixture, "--vary", vary, "--jobs", "1", "--out"])
             .arg(&out)
             .args(["--time-limit", "1.5s"])
             .args(extra)
@@ -473,6 +475,32 @@ fn a_time_limit_ends_a_long_run_cleanly() {
     assert_eq!(o.status.code(), Some(1), "{err}");
     assert!(err.contains("before tune finished"), "{err}");
     assert!(t.elapsed().as_secs_f64() < 10.0);
+    // vet and evolve: a drive 900 GHz off resonance over 1 ms with an
+    // unbounded step budget runs for minutes; the limit ends it, no file.
+    let far = dir.join("far.yaml");
+    std::fs::write(&far, FAR_DRIVE).unwrap();
+    for cmd in ["vet", "evolve"] {
+        let target = dir.join("far.out");
+        let t = Instant::now();
+        let o = bin()
+            .arg(cmd)
+            .arg(&far)
+            .args([
+                "--step-budget",
+                "1000000000000",
+                "--time-limit",
+                "1s",
+                "--out",
+            ])
+            .arg(&target)
+            .output()
+            .unwrap();
+        let err = String::from_utf8_lossy(&o.stderr);
+        assert_eq!(o.status.code(), Some(1), "{cmd}: {err}");
+        assert!(err.contains(&format!("before {cmd} finished")), "{err}");
+        assert!(t.elapsed().as_secs_f64() < 10.0, "{cmd}: {:?}", t.elapsed());
+        assert!(!target.exists());
+    }
     for bad in ["0", "-3s", "soon"] {
         let o = bin()
             .args(["scan", &fixture, "--vary", vary, "--time-limit", bad])
