@@ -141,7 +141,8 @@ pub struct ToleranceArg {
 /// The worker-thread option.
 #[derive(Debug, Args)]
 pub struct JobsArg {
-    /// Worker threads (default: one per core). The output does not depend on it.
+    /// Worker threads (default: one per core; more than the cores are capped at their
+    /// number, with a note). The output does not depend on it.
     #[arg(long, value_name = "N")]
     pub jobs: Option<usize>,
 }
@@ -161,6 +162,16 @@ pub struct StepBudgetArg {
         value_parser = clap::value_parser!(u64).range(1..)
     )]
     pub step_budget: u64,
+}
+
+/// The wall-clock limit of a long command.
+#[derive(Debug, Args)]
+pub struct TimeLimitArg {
+    /// Stop cleanly after this long (90s, 15m, 1.5h; a bare number is seconds) with exit
+    /// status 1: a scan keeps the rows finished so far (with --out in .FILE.partial, which
+    /// --resume continues); vet, evolve and tune write nothing.
+    #[arg(long, value_name = "DURATION", value_parser = super::bounds::parse_duration)]
+    pub time_limit: Option<std::time::Duration>,
 }
 
 /// Logarithmic population axis of a 1-D scan plot.
@@ -193,6 +204,8 @@ pub struct VetArgs {
     #[command(flatten)]
     pub step_budget: StepBudgetArg,
     #[command(flatten)]
+    pub time_limit: TimeLimitArg,
+    #[command(flatten)]
     pub output: ReportOutput,
 }
 
@@ -219,6 +232,8 @@ pub struct EvolveArgs {
     pub log: bool,
     #[command(flatten)]
     pub step_budget: StepBudgetArg,
+    #[command(flatten)]
+    pub time_limit: TimeLimitArg,
 }
 
 #[derive(Debug, Args)]
@@ -253,6 +268,8 @@ pub struct ScanArgs {
     pub jobs: JobsArg,
     #[command(flatten)]
     pub step_budget: StepBudgetArg,
+    #[command(flatten)]
+    pub time_limit: TimeLimitArg,
     /// Compute only the K-th of N contiguous parts of the grid (K from 1 to N, e.g. a
     /// Slurm array task id); join the parts with `levelplan merge`.
     #[arg(long, value_name = "K/N")]
@@ -307,6 +324,8 @@ pub struct TuneArgs {
     pub jobs: JobsArg,
     #[command(flatten)]
     pub step_budget: StepBudgetArg,
+    #[command(flatten)]
+    pub time_limit: TimeLimitArg,
 }
 
 #[derive(Debug, Args)]

@@ -6,15 +6,17 @@
 //! (renderers do).
 
 use super::args::{EvolveArgs, InspectArgs, MergeArgs, TuneArgs, VetArgs};
+use super::bounds;
+use super::guard::distinct;
 use super::io::{load, render_to_vec, write_plot, Sink};
 use levelplan::error::{Error, EXIT_OK, EXIT_TOLERANCE};
 use levelplan::pipeline::{self, study, VetOptions};
 use levelplan::render::{self, evolve as evolve_fmt, scan as scan_fmt, scan_plot};
 use levelplan::scan;
-use std::fs;
 
 /// `inspect`: the dry run.
 pub fn inspect(a: InspectArgs) -> Result<i32, Error> {
+    distinct(&[&a.scheme.scheme], &[("--out", a.output.out.as_deref())])?;
     let (model, prov) = load(&a.scheme.scheme)?;
     let report = pipeline::inspect(&model, prov);
     let rows = a.output.sublevel_rows();
@@ -33,8 +35,13 @@ pub fn vet(a: VetArgs) -> Result<i32, Error> {
         .with_step_budget(a.step_budget.step_budget);
     pipeline::check_tolerance(opts.tolerance)?;
     pipeline::check_population("--goal", opts.goal)?;
+    distinct(&[&a.scheme.scheme], &[("--out", a.output.out.as_deref())])?;
     let (model, prov) = load(&a.scheme.scheme)?;
-    let rep = pipeline::vet(&model, prov, &opts)?;
+    let limit = a.time_limit.time_limit;
+    let Some(rep) = bounds::within(limit, move || pipeline::vet(&model, prov, &opts)) else {
+        return Ok(bounds::ran_out(limit, "vet"));
+    };
+    let rep = rep?;
     let rows = a.output.sublevel_rows();
     let sink = Sink::new(a.output.out, a.output.color);
     let exporter = render::exporter_with(a.output.format.into(), sink.color(), rows);
@@ -46,9 +53,21 @@ pub fn vet(a: VetArgs) -> Result<i32, Error> {
 /// `evolve`: populations against time as CSV, optionally an SVG.
 pub fn evolve(a: EvolveArgs) -> Result<i32, Error> {
     pipeline::evolve::check_samples(a.samples, 0, false)?;
+    distinct(
+        &[&a.scheme.scheme],
+        &[("--out", a.out.as_deref()), ("--plot", a.plot.as_deref())],
+    )?;
     let (model, prov) = load(&a.scheme.scheme)?;
     pipeline::evolve::check_samples(a.samples, model.levels().len(), a.plot.is_some())?;
-    let evo = pipeline::evolve_with_budget(&model, a.samples, a.step_budget.step_budget)?;
+    let model = std::sync::Arc::new(model);
+    let (m, samples, budget) = (model.clone(), a.samples, a.step_budget.step_budget);
+    let limit = a.time_limit.time_limit;
+    let Some(evo) = bounds::within(limit, move || {
+        pipeline::evolve_with_budget(&m, samples, budget)
+    }) else {
+        return Ok(bounds::ran_out(limit, "evolve"));
+    };
+    let evo = evo?;
     let ids: Vec<String> = model.levels().iter().map(|l| l.id.clone()).collect();
     let csv = evolve_fmt::csv(&prov, &ids, &evo);
     if let Some(path) = &a.plot {
@@ -81,11 +100,19 @@ pub fn tune(a: TuneArgs) -> Result<i32, Error> {
         xtol: a.xtol,
     };
     req.check()?;
-    let pool = scan::thread_pool(a.jobs.jobs)?;
+    let pool = scan::thread_pool(bounds::jobs(a.jobs.jobs))?;
     let study =
         super::scan::read_study(&a.scheme.scheme)?.with_step_budget(a.step_budget.step_budget);
-    let report = study::tune(&study, &req, &pool)?;
-    Sink::Stdout { color: false }.emit(scan_fmt::tune_text(&report).as_bytes())?;
+    let limit = a.time_limit.time_limit;
+    match bounds::within(limit, move || study::tune(&study, &req, &pool)) {
+        Some(report) => tune_found(&report?),
+        None => Ok(bounds::ran_out(limit, "tune")),
+    }
+}
+
+/// Print a tune report; exit status 0 when a value was found.
+fn tune_found(report: &scan::TuneReport) -> Result<i32, Error> {
+    Sink::Stdout { color: false }.emit(scan_fmt::tune_text(report).as_bytes())?;
     Ok(if report.found.is_some() {
         EXIT_OK
     } else {
@@ -95,22 +122,15 @@ pub fn tune(a: TuneArgs) -> Result<i32, Error> {
 
 /// `merge`: join the part files of a sharded scan; optionally plot.
 pub fn merge(a: MergeArgs) -> Result<i32, Error> {
+    let parts: Vec<&std::path::Path> = a.parts.iter().map(|p| p.as_path()).collect();
+    distinct(
+        &parts,
+        &[("--out", a.out.as_deref()), ("--plot", a.plot.as_deref())],
+    )?;
     let texts = a
         .parts
         .iter()
-        .map(|p| {
-            fs::read(p)
-                .map_err(|source| Error::Input {
-                    path: p.clone(),
-                    source,
-                })
-                .and_then(|b| {
-                    String::from_utf8(b).map_err(|_| Error::BadArgument {
-                        what: "merge".into(),
-                        message: format!("{} is not UTF-8 text", p.display()),
-                    })
-                })
-        })
+        .map(|p| bounds::read_part(p))
         .collect::<Result<Vec<String>, Error>>()?;
     let bytes = scan::merge::merge_texts(&a.parts, &texts)?;
     let svg = match &a.plot {

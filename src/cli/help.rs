@@ -74,7 +74,8 @@ n sublevels above their tolerance); --sublevels shows each. JSON and CSV list ev
 
 Exit status: 0 every spectator within tolerance, 3 at least one above or (with --goal) a target
 below the goal (the report is still printed),
-2 bad input (scheme file or option), 1 a run that could not vouch for its result or output not written.",
+2 bad input (scheme file or option), 1 a run that could not vouch for its result, output not written or
+--time-limit passed first.",
         true,
     )
 }
@@ -91,7 +92,7 @@ time_s,<level ids> and one row per sample: the absolute scheme time in seconds a
 last row is the final state.
 
 Exit status: 0 written, 2 bad input (scheme file or option), 1 a run that could not vouch for its result
-(step budget, norm error, non-finite value) or output not written.",
+(step budget, norm error, non-finite value), output not written or --time-limit passed first.",
         false,
     )
 }
@@ -108,10 +109,13 @@ pub fn scan() -> String {
 
 Rows are in grid order and byte-identical for any --jobs and after merge. Leading '#' lines state the tool
 version, the scheme's SHA-256, every --vary, the tolerance and the scan hash. A grid is limited to 10^7 points
-without --force. Interrupting (Ctrl-C, kill) leaves no FILE; --resume continues it.
+without --force. Interrupting (Ctrl-C, kill) leaves no FILE; --resume continues it. While it runs, a scan holds
+.FILE.lock: a second scan on the same FILE is refused. --time-limit starts no point after the limit and keeps the
+finished rows for --resume.
 
-Exit status: 0 written, 2 bad input (path, unit, COUNT, shard, grid size; no file is created), 1 a point failed
-or the output could not be written.",
+Exit status: 0 written, 2 bad input (path, unit, COUNT, shard, grid size, an output that is the scheme; no file
+is created), 1 a point failed, the output could not be written or is locked by another scan, or --time-limit
+ended the scan first.",
         false,
     )
 }
@@ -128,11 +132,12 @@ the populations there, and the number of solves. --maximize assumes one maximum 
 best coarse point; --shortest takes the first feasible coarse point and bisects towards its predecessor
 (a feasible window narrower than a coarse step can be missed).
 
-Exit status: 0 found, 3 no value in the range meets the --shortest condition, 2 bad input, 1 a run failed.",
+Exit status: 0 found, 3 no value in the range meets the --shortest condition, 2 bad input, 1 a run failed or
+--time-limit passed first.",
         false,
     )
 }
 
 pub fn merge() -> String {
-    "Example:\n  levelplan merge part_1.csv part_2.csv part_3.csv part_4.csv --out spectrum.csv --plot spectrum.svg\n\nExit status: 0 merged, 2 bad or mismatched parts, 1 output not written.".to_string()
+    "Example:\n  levelplan merge part_1.csv part_2.csv part_3.csv part_4.csv --out spectrum.csv --plot spectrum.svg\n\nParts are regular files of at most 1 GiB each.\n\nExit status: 0 merged, 2 bad or mismatched parts (or an output that is a part), 1 output not written.".to_string()
 }

@@ -6,9 +6,12 @@
 //! into the library.
 
 pub mod args;
+mod bounds;
 mod commands;
+mod guard;
 mod help;
 mod io;
+mod lock;
 mod output;
 mod partial;
 mod scan;

@@ -15,8 +15,10 @@
 
 use super::args::ScanArgs;
 use super::io::write_plot;
+use super::output::{open_direct, resolve, Patient, Target};
 use super::partial::{open_partial, out_err, partial_path};
-use levelplan::error::{Error, EXIT_OK};
+use super::{bounds, guard, lock};
+use levelplan::error::{Error, EXIT_FAILED, EXIT_OK};
 use levelplan::pipeline::check_tolerance;
 use levelplan::pipeline::study::{self, row_from_report, Study};
 use levelplan::render::scan as fmt;
@@ -26,6 +28,7 @@ use std::fs;
 use std::io::{BufWriter, IsTerminal, Write};
 use std::ops::Range;
 use std::path::{Path, PathBuf};
+use std::time::Instant;
 
 fn bad(what: &str, message: impl Into<String>) -> Error {
     Error::BadArgument {
@@ -71,69 +74,124 @@ fn progress_bar(show: bool, len: usize, done: usize) -> indicatif::ProgressBar {
     bar
 }
 
+/// Where a scan's rows go.
+pub enum Dest<'a> {
+    /// stdout, or a device or FIFO written directly (no partial file, no
+    /// resume); the name is for messages.
+    Stream(Box<dyn Write + 'a>, PathBuf),
+    /// A regular file (links followed): `.FILE.partial` row by row, renamed
+    /// to FILE when complete, guarded by `.FILE.lock`.
+    File(&'a Path),
+}
+
+/// How a plan runs.
+#[derive(Debug, Clone, Copy, Default)]
+pub struct RunOptions {
+    /// Continue the rows of an existing partial file.
+    pub resume: bool,
+    /// Return the rows (for a plot; resumed rows included).
+    pub keep: bool,
+    /// Show a progress bar.
+    pub progress: bool,
+    /// Start no point after this moment (`--time-limit`).
+    pub deadline: Option<Instant>,
+}
+
+/// How a plan ended.
+#[derive(Debug)]
+pub enum Outcome {
+    /// Every row written; the rows if kept.
+    Done(Vec<ScanRow>),
+    /// The time limit passed: this many of the plan's rows are written
+    /// (with a file, kept in the partial file for `--resume`).
+    Stopped {
+        written: usize,
+        partial: Option<PathBuf>,
+    },
+}
+
+/// The error that stops the hand-out of points at the time limit.
+const TIME_LIMIT: &str = "--time-limit";
+
+fn is_time_limit(e: &Error) -> bool {
+    matches!(e, Error::BadArgument { what, .. } if what == TIME_LIMIT)
+}
+
 /// Run a plan: evaluate its points on `pool` with `eval`, write the head and
-/// the rows in grid order to `out` (partial file + rename) or stdout, and
-/// return the rows when `keep` (for a plot; resumed rows included).
+/// the rows in grid order to `dest`; stop cleanly at the deadline.
 pub fn run_plan(
     plan: &Plan,
     pool: &rayon::ThreadPool,
     eval: &(dyn Fn(&[f64]) -> Result<ScanRow, Error> + Sync),
-    out: Option<&Path>,
-    resume: bool,
-    keep: bool,
-    progress: bool,
-) -> Result<Vec<ScanRow>, Error> {
-    let evaluate = |i: usize| eval(&plan.grid.point(i));
-    match out {
-        None => {
-            let stdout = std::io::stdout();
-            let mut w = BufWriter::new(stdout.lock());
-            let werr = |source| Error::Output {
-                path: PathBuf::from("<stdout>"),
-                source,
-            };
-            w.write_all(plan.head.as_bytes()).map_err(werr)?;
-            let bar = progress_bar(progress, plan.range.len(), 0);
-            let mut kept = Vec::new();
-            grid::run_ordered(pool, plan.range.clone(), evaluate, |_, row| {
-                w.write_all(fmt::row(&row, plan.open).as_bytes())
-                    .map_err(werr)?;
-                bar.inc(1);
-                if keep {
-                    kept.push(row);
-                }
-                Ok(())
-            })?;
-            w.flush().map_err(werr)?;
-            bar.finish_and_clear();
-            Ok(kept)
+    dest: Dest,
+    opts: RunOptions,
+) -> Result<Outcome, Error> {
+    let evaluate = |i: usize| {
+        if bounds::past(opts.deadline) {
+            return Err(bad(TIME_LIMIT, "reached"));
         }
-        Some(path) => {
+        eval(&plan.grid.point(i))
+    };
+    let (w, name, start, mut kept, file_out) = match dest {
+        Dest::Stream(mut w, name) => {
+            w.write_all(plan.head.as_bytes()).map_err(out_err(&name))?;
+            (w, name, plan.range.start, Vec::new(), None)
+        }
+        Dest::File(path) => {
+            let lock_file = lock::lock_path(path)
+                .ok_or_else(|| bad("--out", format!("{} is not a file name", path.display())))?;
+            let lock = lock::acquire(&lock_file)?;
             let partial = partial_path(path)?;
-            let (file, start, mut kept) = open_partial(&partial, plan, resume, keep)?;
-            let err = out_err(&partial);
-            let mut w = BufWriter::new(file);
-            let bar = progress_bar(progress, plan.range.len(), start - plan.range.start);
-            grid::run_ordered(pool, start..plan.range.end, evaluate, |_, row| {
-                w.write_all(fmt::row(&row, plan.open).as_bytes())
-                    .map_err(&err)?;
-                // Each finished row reaches the file, so a kill loses at
-                // most the points still running.
-                w.flush().map_err(&err)?;
-                bar.inc(1);
-                if keep {
-                    kept.push(row);
-                }
-                Ok(())
-            })?;
-            bar.finish_and_clear();
-            let file = w.into_inner().map_err(|e| err(e.into_error()))?;
-            file.sync_all().map_err(&err)?;
-            drop(file);
-            fs::rename(&partial, path).map_err(out_err(path))?;
-            Ok(kept)
+            let (file, start, kept) = open_partial(&partial, plan, opts.resume, opts.keep)?;
+            let sync = file.try_clone().map_err(out_err(&partial))?;
+            let w: Box<dyn Write> = Box::new(file);
+            (w, partial, start, kept, Some((path, sync, lock)))
         }
+    };
+    let err = out_err(&name);
+    let mut w = BufWriter::new(w);
+    let bar = progress_bar(opts.progress, plan.range.len(), start - plan.range.start);
+    let mut written = start - plan.range.start;
+    let run = grid::run_ordered(pool, start..plan.range.end, evaluate, |_, row| {
+        w.write_all(fmt::row(&row, plan.open).as_bytes())
+            .map_err(&err)?;
+        // Each finished row reaches the file, so a kill loses at most the
+        // points still running.
+        w.flush().map_err(&err)?;
+        written += 1;
+        bar.inc(1);
+        if opts.keep {
+            kept.push(row);
+        }
+        Ok(())
+    });
+    bar.finish_and_clear();
+    w.flush().map_err(&err)?;
+    drop(w);
+    let stopped = match run {
+        Err(e) if is_time_limit(&e) => true,
+        r => {
+            r?;
+            false
+        }
+    };
+    // The lock is held until the partial file is renamed (or kept).
+    if let Some((path, file, _lock)) = file_out {
+        file.sync_all().map_err(&err)?;
+        if stopped {
+            return Ok(Outcome::Stopped {
+                written,
+                partial: Some(name.clone()),
+            });
+        }
+        fs::rename(&name, path).map_err(out_err(path))?;
+    } else if stopped {
+        return Ok(Outcome::Stopped {
+            written,
+            partial: None,
+        });
     }
+    Ok(Outcome::Done(kept))
 }
 
 /// `scan`: every point of the grid (or of one shard), CSV in grid order,
@@ -146,7 +204,7 @@ pub fn scan(a: ScanArgs) -> Result<i32, Error> {
     let specs = study::parse_specs(&a.vary, true, a.log)?;
     grid::check_size(specs.iter().map(|s| s.count.unwrap_or(1)), a.force)?;
     let shard = a.shard.as_deref().map(Shard::parse).transpose()?;
-    let pool = grid::thread_pool(a.jobs.jobs)?;
+    let pool = grid::thread_pool(bounds::jobs(a.jobs.jobs))?;
     if a.resume && a.out.is_none() {
         return Err(bad(
             "--resume",
@@ -164,9 +222,8 @@ pub fn scan(a: ScanArgs) -> Result<i32, Error> {
             return Err(bad("--plot", "plots are drawn for 1-D and 2-D scans only"));
         }
     }
-    if let Some(out) = &a.out {
-        partial_path(out)?;
-    }
+    let target = a.out.as_deref().map(resolve).transpose()?;
+    check_files(&a, target.as_ref())?;
     let s = read_study(&a.scheme.scheme)?.with_step_budget(a.step_budget.step_budget);
     let axes = s.axes(&specs, a.log, 1)?;
     let grid = Grid::new(axes, a.force)?;
@@ -200,15 +257,35 @@ pub fn scan(a: ScanArgs) -> Result<i32, Error> {
         // computed now or read back by --resume.
         Ok(row_from_report(coords, &rep).as_written(plan.open))
     };
-    let rows = run_plan(
-        &plan,
-        &pool,
-        &eval,
-        a.out.as_deref(),
-        a.resume,
-        a.plot.is_some(),
+    let dest = match &target {
+        None => Dest::Stream(Box::new(std::io::stdout().lock()), "<stdout>".into()),
+        Some(Target::Direct(p)) => Dest::Stream(Box::new(Patient(open_direct(p)?)), p.clone()),
+        Some(Target::File(p)) => Dest::File(p),
+    };
+    let opts = RunOptions {
+        resume: a.resume,
+        keep: a.plot.is_some(),
         progress,
-    )?;
+        deadline: bounds::deadline(a.time_limit.time_limit),
+    };
+    let rows = match run_plan(&plan, &pool, &eval, dest, opts)? {
+        Outcome::Done(rows) => rows,
+        Outcome::Stopped { written, partial } => {
+            let limit = a.time_limit.time_limit.unwrap_or_default().as_secs_f64();
+            let next = match partial {
+                Some(p) => format!(
+                    "they are kept in {}; run the same command with --resume to continue",
+                    p.display()
+                ),
+                None => "a scan not written to a file (--out) cannot be continued".into(),
+            };
+            eprintln!(
+                "levelplan: time limit of {limit} s reached: {written} of {} points written, {next}",
+                plan.range.len()
+            );
+            return Ok(EXIT_FAILED);
+        }
+    };
     if let Some(path) = &a.plot {
         let title = model
             .title()
@@ -226,6 +303,34 @@ pub fn scan(a: ScanArgs) -> Result<i32, Error> {
         write_plot(path, svg)?;
     }
     Ok(EXIT_OK)
+}
+
+/// The scan's files, checked before any is created: `--resume` needs a
+/// regular output file; no output (nor the partial and lock files beside
+/// it) is the scheme or another output.
+fn check_files(a: &ScanArgs, target: Option<&Target>) -> Result<(), Error> {
+    let (partial, lock_file) = match target {
+        Some(Target::File(p)) => (Some(partial_path(p)?), lock::lock_path(p)),
+        Some(Target::Direct(p)) if a.resume => {
+            return Err(bad(
+                "--resume",
+                format!(
+                    "{} is not a regular file (a device or FIFO): a scan written there cannot be continued",
+                    p.display()
+                ),
+            ))
+        }
+        _ => (None, None),
+    };
+    guard::distinct(
+        &[&a.scheme.scheme],
+        &[
+            ("--out", a.out.as_deref()),
+            ("--plot", a.plot.as_deref()),
+            ("--out (its partial file)", partial.as_deref()),
+            ("--out (its lock file)", lock_file.as_deref()),
+        ],
+    )
 }
 
 #[cfg(test)]

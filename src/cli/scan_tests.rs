@@ -86,7 +86,15 @@ impl Drop for TempDir {
 
 fn run(p: &Plan, jobs: usize, out: &Path, resume: bool) -> Result<Vec<ScanRow>, Error> {
     let pool = grid::thread_pool(Some(jobs)).unwrap();
-    run_plan(p, &pool, &fake, Some(out), resume, true, false)
+    let opts = RunOptions {
+        resume,
+        keep: true,
+        ..RunOptions::default()
+    };
+    match run_plan(p, &pool, &fake, Dest::File(out), opts)? {
+        Outcome::Done(rows) => Ok(rows),
+        o => panic!("no time limit, yet {o:?}"),
+    }
 }
 
 #[test]
@@ -278,7 +286,8 @@ fn a_failing_point_leaves_no_output_file() {
             fake(c)
         }
     };
-    assert!(run_plan(&p, &pool, &failing, Some(&out), false, false, false).is_err());
+    let opts = RunOptions::default();
+    assert!(run_plan(&p, &pool, &failing, Dest::File(&out), opts).is_err());
     assert!(!out.exists());
     // The rows before the failure are kept for inspection.
     assert!(partial_path(&out).unwrap().exists());
@@ -295,4 +304,36 @@ fn partial_path_sits_beside_the_output() {
         PathBuf::from(".b.csv.partial")
     );
     assert!(partial_path(Path::new("/")).is_err());
+}
+
+/// Regression (`--time-limit`): a scan stopped at its deadline keeps the
+/// rows written in the partial file, releases its lock, and `--resume`
+/// completes the same bytes.
+#[test]
+fn a_scan_stopped_by_its_time_limit_resumes_to_the_same_file() {
+    let d = TempDir::new("deadline");
+    let p = plan(None);
+    let whole = d.0.join("whole.csv");
+    run(&p, 2, &whole, false).unwrap();
+    let out = d.0.join("stopped.csv");
+    let pool = grid::thread_pool(Some(2)).unwrap();
+    let slow = |c: &[f64]| {
+        std::thread::sleep(std::time::Duration::from_millis(20));
+        fake(c)
+    };
+    let opts = RunOptions {
+        deadline: Some(Instant::now() + std::time::Duration::from_millis(150)),
+        ..RunOptions::default()
+    };
+    let Outcome::Stopped { written, partial } =
+        run_plan(&p, &pool, &slow, Dest::File(&out), opts).unwrap()
+    else {
+        panic!("35 points of 20 ms on 2 threads outlast 150 ms");
+    };
+    assert!(written > 0 && written < 35, "{written}");
+    assert_eq!(partial, Some(partial_path(&out).unwrap()));
+    assert!(!out.exists());
+    assert!(!lock::lock_path(&out).unwrap().exists());
+    run(&p, 2, &out, true).unwrap();
+    assert_eq!(fs::read(&out).unwrap(), fs::read(&whole).unwrap());
 }

@@ -233,18 +233,19 @@ fn evolve_sample_limit() {
     );
 }
 
+/// A drive 900 GHz off resonance (inside the 1 THz cutoff) over 1 ms:
+/// about 1e9 periods of the fastest frequency.
+const FAR_DRIVE: &str = "levels:\n  g: {energy: 0 cm^-1}\n  e: {energy: 12000 cm^-1}\ninitial: g\n\
+    couplings:\n  - {between: [g, e], dipole: 1}\n\
+    fields:\n  far:\n    tuned: {to: [g, e], detuning: 900 GHz}\n    \
+    rabi: {on: [g, e], value: 1 MHz}\n    \
+    envelope: {shape: gaussian, center: 0.5 ms, fwhm: 0.2 ms}\n";
+
 #[test]
 fn step_budget_fails_fast_with_its_cause() {
-    // A drive 900 GHz off resonance (inside the 1 THz cutoff) over 1 ms:
-    // about 1e9 periods of the fastest frequency.
-    let text = "levels:\n  g: {energy: 0 cm^-1}\n  e: {energy: 12000 cm^-1}\ninitial: g\n\
-        couplings:\n  - {between: [g, e], dipole: 1}\n\
-        fields:\n  far:\n    tuned: {to: [g, e], detuning: 900 GHz}\n    \
-        rabi: {on: [g, e], value: 1 MHz}\n    \
-        envelope: {shape: gaussian, center: 0.5 ms, fwhm: 0.2 ms}\n";
     let (err, secs) = refused(
         "budget",
-        text.as_bytes(),
+        FAR_DRIVE.as_bytes(),
         &["vet"],
         1,
         &[
@@ -344,4 +345,168 @@ fn pulse_axis_time_limit() {
         &["at most 1e4 s"],
     );
     assert!(t.elapsed().as_secs_f64() < 5.0);
+}
+
+fn scan_fixture() -> String {
+    std::path::Path::new(env!("CARGO_MANIFEST_DIR"))
+        .join("tests/fixtures/two_level_scan.yaml")
+        .to_string_lossy()
+        .into_owned()
+}
+
+/// Regression: `merge /dev/zero` read without end. A part that is not a
+/// regular file is refused before reading, and so is a part larger than
+/// 1 GiB (a sparse file here: nothing is written to disk).
+#[test]
+fn merge_refuses_devices_and_parts_above_one_gib() {
+    let t = Instant::now();
+    let o = bin().args(["merge", "/dev/zero"]).output().unwrap();
+    let err = String::from_utf8_lossy(&o.stderr);
+    assert_eq!(o.status.code(), Some(2), "{err}");
+    assert!(err.contains("not a regular file"), "{err}");
+    let dir = scratch("merge-cap");
+    let huge = dir.join("huge.csv");
+    let f = std::fs::File::create(&huge).unwrap();
+    f.set_len((1 << 30) + 1).unwrap();
+    let o = bin().arg("merge").arg(&huge).output().unwrap();
+    let err = String::from_utf8_lossy(&o.stderr);
+    assert_eq!(o.status.code(), Some(2), "{err}");
+    assert!(
+        err.contains("larger than 1073741824 bytes (1 GiB)"),
+        "{err}"
+    );
+    assert!(t.elapsed().as_secs_f64() < 5.0, "{:?}", t.elapsed());
+    std::fs::remove_dir_all(&dir).unwrap();
+}
+
+/// Regression: `--jobs 100000` started threads until the test timed out.
+/// More jobs than cores are capped with a note; `--jobs 0` stays an error.
+#[test]
+fn jobs_beyond_the_cores_are_capped_with_a_note() {
+    let fixture = scan_fixture();
+    let vary = "fields.probe.tuned.detuning=-20MHz..20MHz:5";
+    let t = Instant::now();
+    let o = bin()
+        .args(["scan", &fixture, "--vary", vary, "--jobs", "100000"])
+        .output()
+        .unwrap();
+    let err = String::from_utf8_lossy(&o.stderr);
+    assert_eq!(o.status.code(), Some(0), "{err}");
+    assert!(err.contains("--jobs 100000 capped at"), "{err}");
+    assert!(t.elapsed().as_secs_f64() < 20.0, "{:?}", t.elapsed());
+    let plain = bin()
+        .args(["scan", &fixture, "--vary", vary, "--jobs", "1"])
+        .output()
+        .unwrap();
+    assert_eq!(o.stdout, plain.stdout);
+    let o = bin()
+        .args([
+            "tune",
+            &fixture,
+            "--vary",
+            "fields.probe.tuned.detuning=-20MHz..20MHz",
+        ])
+        .args(["--maximize", "e", "--jobs", "100000"])
+        .output()
+        .unwrap();
+    assert!(String::from_utf8_lossy(&o.stderr).contains("capped at"));
+    let o = bin()
+        .args(["scan", &fixture, "--vary", vary, "--jobs", "0"])
+        .output()
+        .unwrap();
+    assert_eq!(o.status.code(), Some(2));
+}
+
+/// `--time-limit`: a scan stops starting points at the limit, keeps the
+/// rows it finished in the partial file (exit 1, the message says how many
+/// and how to continue) and `--resume` continues from them; `tune`, `vet`
+/// and `evolve` end with exit 1 and write nothing. Bad durations are
+/// refused (exit 2).
+#[test]
+fn a_time_limit_ends_a_long_run_cleanly() {
+    let fixture = scan_fixture();
+    let dir = scratch("time-limit-run");
+    let out = dir.join("long.csv");
+    let partial = dir.join(".long.csv.partial");
+    let vary = "fields.probe.tuned.detuning=-20MHz..20MHz:2000000";
+    let run = |extra: &[&str]| {
+        let t = Instant::now();
+        let o = bin()
+            .args(["scan", &fixture, "--vary", vary, "--jobs", "1", "--out"])
+            .arg(&out)
+            .args(["--time-limit", "1.5s"])
+            .args(extra)
+            .output()
+            .unwrap();
+        (o, t.elapsed().as_secs_f64())
+    };
+    let (o, secs) = run(&[]);
+    let err = String::from_utf8_lossy(&o.stderr);
+    assert_eq!(o.status.code(), Some(1), "{err}");
+    assert!(secs < 10.0, "{secs} s");
+    assert!(err.contains("time limit of 1.5 s reached"), "{err}");
+    assert!(err.contains("--resume"), "{err}");
+    let lines = |p: &std::path::Path| std::fs::read_to_string(p).unwrap().lines().count();
+    let first = lines(&partial);
+    assert!(!out.exists());
+    assert!(!dir.join(".long.csv.lock").exists());
+    let (o, _) = run(&["--resume"]);
+    assert_eq!(o.status.code(), Some(1));
+    assert!(lines(&partial) > first);
+    // To stdout: the rows so far, then exit 1.
+    let o = bin()
+        .args(["scan", &fixture, "--vary", vary, "--time-limit", "1"])
+        .output()
+        .unwrap();
+    assert_eq!(o.status.code(), Some(1));
+    assert!(String::from_utf8_lossy(&o.stderr).contains("cannot be continued"));
+    assert!(String::from_utf8_lossy(&o.stdout).lines().count() > 20);
+    // tune: a coarse grid of 2,000,000 points outlasts 1 s.
+    let t = Instant::now();
+    let o = bin()
+        .args(["tune", &fixture, "--maximize", "e", "--time-limit", "1s"])
+        .args([
+            "--vary",
+            "fields.probe.tuned.detuning=-20MHz..20MHz:2000000",
+        ])
+        .output()
+        .unwrap();
+    let err = String::from_utf8_lossy(&o.stderr);
+    assert_eq!(o.status.code(), Some(1), "{err}");
+    assert!(err.contains("before tune finished"), "{err}");
+    assert!(t.elapsed().as_secs_f64() < 10.0);
+    // vet and evolve: a drive 900 GHz off resonance over 1 ms with an
+    // unbounded step budget runs for minutes; the limit ends it, no file.
+    let far = dir.join("far.yaml");
+    std::fs::write(&far, FAR_DRIVE).unwrap();
+    for cmd in ["vet", "evolve"] {
+        let target = dir.join("far.out");
+        let t = Instant::now();
+        let o = bin()
+            .arg(cmd)
+            .arg(&far)
+            .args([
+                "--step-budget",
+                "1000000000000",
+                "--time-limit",
+                "1s",
+                "--out",
+            ])
+            .arg(&target)
+            .output()
+            .unwrap();
+        let err = String::from_utf8_lossy(&o.stderr);
+        assert_eq!(o.status.code(), Some(1), "{cmd}: {err}");
+        assert!(err.contains(&format!("before {cmd} finished")), "{err}");
+        assert!(t.elapsed().as_secs_f64() < 10.0, "{cmd}: {:?}", t.elapsed());
+        assert!(!target.exists());
+    }
+    for bad in ["0", "-3s", "soon"] {
+        let o = bin()
+            .args(["scan", &fixture, "--vary", vary, "--time-limit", bad])
+            .output()
+            .unwrap();
+        assert_eq!(o.status.code(), Some(2), "{bad}");
+    }
+    std::fs::remove_dir_all(&dir).unwrap();
 }
