@@ -71,6 +71,12 @@ pub fn evolve(a: EvolveArgs) -> Result<i32, Error> {
 
 /// `tune`: the value that maximises a population or the smallest feasible one.
 pub fn tune(a: TuneArgs) -> Result<i32, Error> {
+    if let Some(w) = a.with.first() {
+        return Err(Error::BadArgument {
+            what: format!("--with '{w}'"),
+            message: "tune searches one value and takes no linked path; scan the linked axis (scan --vary ... --with ...) and read the best row".into(),
+        });
+    }
     let req = study::TuneRequest {
         vary: a.vary,
         log: a.log,
@@ -82,8 +88,9 @@ pub fn tune(a: TuneArgs) -> Result<i32, Error> {
     };
     req.check()?;
     let pool = scan::thread_pool(a.jobs.jobs)?;
-    let study =
-        super::scan::read_study(&a.scheme.scheme)?.with_step_budget(a.step_budget.step_budget);
+    let study = super::scan::read_study(&a.scheme.scheme)?
+        .with_step_budget(a.step_budget.step_budget)
+        .with_tuned_follows(a.tuned.tuned_follows);
     let report = study::tune(&study, &req, &pool)?;
     Sink::Stdout { color: false }.emit(scan_fmt::tune_text(&report).as_bytes())?;
     Ok(if report.found.is_some() {
