@@ -6,7 +6,6 @@
 
 mod cli;
 
-use clap::Parser;
 use levelplan::error::{EXIT_BAD_INPUT, EXIT_OK};
 use std::io::Write;
 use std::process::ExitCode;
@@ -16,7 +15,7 @@ fn status(code: i32) -> ExitCode {
 }
 
 fn main() -> ExitCode {
-    let cli = match cli::args::Cli::try_parse() {
+    let cli = match cli::args::parse() {
         Ok(c) => c,
         Err(e) => {
             // Help and version go to stdout, usage errors to stderr; either

@@ -23,6 +23,28 @@ pub struct Cli {
     pub command: Command,
 }
 
+/// The command line parsed, with each `scan --with` told which `--vary`
+/// it follows (clap's derive keeps each option's values, not their order).
+pub fn parse() -> Result<Cli, clap::Error> {
+    use clap::{CommandFactory, FromArgMatches};
+    let matches = Cli::command().try_get_matches()?;
+    let mut cli = Cli::from_arg_matches(&matches)?;
+    if let (Command::Scan(a), Some(m)) = (&mut cli.command, matches.subcommand_matches("scan")) {
+        let varies: Vec<usize> = m
+            .indices_of("vary")
+            .map(Iterator::collect)
+            .unwrap_or_default();
+        a.with_after = m
+            .indices_of("with")
+            .map(|w| {
+                w.map(|i| varies.iter().filter(|&&v| v < i).count())
+                    .collect()
+            })
+            .unwrap_or_default();
+    }
+    Ok(cli)
+}
+
 #[derive(Debug, Subcommand)]
 pub enum Command {
     /// Dry run: levels (cm^-1, THz, lifetime), every drive (transition, wavelength,
@@ -174,6 +196,16 @@ pub struct TimeLimitArg {
     pub time_limit: Option<std::time::Duration>,
 }
 
+/// Whether a `tuned` carrier follows a varied level energy.
+#[derive(Debug, Args)]
+pub struct TunedFollowsArg {
+    /// Let every `tuned` laser follow its levels when a varied path is under `levels` or
+    /// `manifolds` (its carrier recomputed at each point). Default: such a laser keeps
+    /// the frequency of the scheme as written, so the level moves through it.
+    #[arg(long)]
+    pub tuned_follows: bool,
+}
+
 /// Logarithmic population axis of a 1-D scan plot.
 #[derive(Debug, Args)]
 pub struct LogYArg {
@@ -247,6 +279,17 @@ pub struct ScanArgs {
     /// included. Repeat for a grid: the first --vary varies slowest, the last fastest.
     #[arg(long = "vary", value_name = "PATH=START..END:COUNT", required = true)]
     pub vary: Vec<String>,
+    /// PATH=START..END: move this path together with the --vary written before it (a
+    /// linked axis): at that axis's i-th point it takes the i-th of as many values from
+    /// START to END, spaced as the axis. Its own CSV column. Repeatable.
+    #[arg(long = "with", value_name = "PATH=START..END")]
+    pub with: Vec<String>,
+    /// For each --with, the number of --vary options written before it (filled from
+    /// the command line's order by `place_links`).
+    #[arg(skip)]
+    pub with_after: Vec<usize>,
+    #[command(flatten)]
+    pub tuned: TunedFollowsArg,
     /// Logarithmic spacing on every axis (START and END positive); per axis: ":log".
     #[arg(long)]
     pub log: bool,
@@ -291,6 +334,11 @@ pub struct TuneArgs {
     /// and the number of coarse-grid points (default 41, at least 3).
     #[arg(long, value_name = "PATH=LO..HI")]
     pub vary: String,
+    /// Linked paths are for scan; tune refuses them (it searches one value).
+    #[arg(long = "with", value_name = "PATH=LO..HI", hide = true)]
+    pub with: Vec<String>,
+    #[command(flatten)]
+    pub tuned: TunedFollowsArg,
     /// Maximise the final population of this level (its id in the scheme).
     #[arg(
         long,

@@ -90,6 +90,12 @@ pub fn evolve(a: EvolveArgs) -> Result<i32, Error> {
 
 /// `tune`: the value that maximises a population or the smallest feasible one.
 pub fn tune(a: TuneArgs) -> Result<i32, Error> {
+    if let Some(w) = a.with.first() {
+        return Err(Error::BadArgument {
+            what: format!("--with '{w}'"),
+            message: "tune searches one value and takes no linked path; scan the linked axis (scan --vary ... --with ...) and read the best row".into(),
+        });
+    }
     let req = study::TuneRequest {
         vary: a.vary,
         log: a.log,
@@ -101,8 +107,9 @@ pub fn tune(a: TuneArgs) -> Result<i32, Error> {
     };
     req.check()?;
     let pool = scan::thread_pool(bounds::jobs(a.jobs.jobs))?;
-    let study =
-        super::scan::read_study(&a.scheme.scheme)?.with_step_budget(a.step_budget.step_budget);
+    let study = super::scan::read_study(&a.scheme.scheme)?
+        .with_step_budget(a.step_budget.step_budget)
+        .with_tuned_follows(a.tuned.tuned_follows);
     let limit = a.time_limit.time_limit;
     match bounds::within(limit, move || study::tune(&study, &req, &pool)) {
         Some(report) => tune_found(&report?),

@@ -106,12 +106,19 @@ pub fn scan() -> String {
       --vary fields.probe.envelope.duration=50ns..5000ns:31:log --vary fields.probe.tuned.detuning=-20MHz..20MHz:41 \\
       --out map.csv --plot map.svg
   levelplan scan SCHEME --vary ... --shard 3/16 --out part_3.csv   (then: levelplan merge part_*.csv --out all.csv)
+  levelplan scan level_schemes/cookbook/velocity_ladder.yaml --vary fields.lower.tuned.detuning=512.5MHz..487.5MHz:21 \
+      --with fields.upper.tuned.detuning=-520MHz..-480MHz   (velocity classes: two detunings moved together)
+
+--with PATH=START..END links PATH to the --vary before it: at that axis's i-th point it takes the i-th of as many
+values from START to END (its own CSV column). Varying a path under levels or manifolds (a level energy) keeps
+every `tuned` laser at the frequency of the scheme as written, so the level moves through the laser;
+--tuned-follows recomputes the laser from the moved levels instead.
 
 Rows are in grid order and byte-identical for any --jobs and after merge. Leading '#' lines state the tool
-version, the scheme's SHA-256, every --vary, the tolerance and the scan hash. A grid is limited to 10^7 points
-without --force. Interrupting (Ctrl-C, kill) leaves no FILE; --resume continues it. While it runs, a scan holds
-.FILE.lock: a second scan on the same FILE is refused. --time-limit starts no point after the limit and keeps the
-finished rows for --resume.
+version, the scheme's SHA-256, every --vary and --with, the tolerance and the scan hash. A grid is limited to
+10^7 points without --force. Interrupting (Ctrl-C, kill) leaves no FILE; --resume continues it. While it runs, a
+scan holds .FILE.lock: a second scan on the same FILE is refused. --time-limit starts no point after the limit
+and keeps the finished rows for --resume.
 
 Exit status: 0 written, 2 bad input (path, unit, COUNT, shard, grid size, an output that is the scheme; no file
 is created), 1 a point failed, the output could not be written or is locked by another scan, or --time-limit

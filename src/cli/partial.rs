@@ -104,7 +104,7 @@ pub fn open_partial(
             plan.range.len()
         )));
     }
-    let n_axes = plan.grid.axes.len();
+    let n_axes = plan.grid.columns().len();
     let mut kept = Vec::new();
     let mut valid = parsed.body_start;
     for (j, line) in parsed.rows.iter().enumerate() {

@@ -202,6 +202,13 @@ pub fn scan(a: ScanArgs) -> Result<i32, Error> {
     // Everything that can be refused is refused before a file is touched.
     check_tolerance(tolerance)?;
     let specs = study::parse_specs(&a.vary, true, a.log)?;
+    let with: Vec<(String, usize)> = a
+        .with
+        .iter()
+        .cloned()
+        .zip(a.with_after.iter().copied())
+        .collect();
+    let links = study::parse_links(&with)?;
     grid::check_size(specs.iter().map(|s| s.count.unwrap_or(1)), a.force)?;
     let shard = a.shard.as_deref().map(Shard::parse).transpose()?;
     let pool = grid::thread_pool(bounds::jobs(a.jobs.jobs))?;
@@ -224,8 +231,11 @@ pub fn scan(a: ScanArgs) -> Result<i32, Error> {
     }
     let target = a.out.as_deref().map(resolve).transpose()?;
     check_files(&a, target.as_ref())?;
-    let s = read_study(&a.scheme.scheme)?.with_step_budget(a.step_budget.step_budget);
-    let axes = s.axes(&specs, a.log, 1)?;
+    let s = read_study(&a.scheme.scheme)?
+        .with_step_budget(a.step_budget.step_budget)
+        .with_tuned_follows(a.tuned.tuned_follows);
+    let mut axes = s.axes(&specs, a.log, 1)?;
+    s.link(&mut axes, &links)?;
     let grid = Grid::new(axes, a.force)?;
     let (model, open) = s.preflight_open(&grid)?;
     let prov = s.provenance();

@@ -31,6 +31,7 @@ fn axis(path: &str, start: f64, end: f64, count: usize) -> Axis {
         end,
         count,
         spacing: Spacing::Linear,
+        links: Vec::new(),
     }
 }
 

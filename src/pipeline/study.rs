@@ -26,6 +26,9 @@ pub struct Study {
     prepared: std::sync::OnceLock<scheme::Prepared>,
     /// Step budget of every point's propagation.
     step_budget: u64,
+    /// `tuned` carriers follow varied level energies
+    /// ([`scheme::Prepared::with_tuned_follows`]).
+    tuned_follows: bool,
 }
 
 impl Study {
@@ -36,7 +39,16 @@ impl Study {
             source,
             prepared: std::sync::OnceLock::new(),
             step_budget: crate::solve::DEFAULT_STEP_BUDGET,
+            tuned_follows: false,
         }
+    }
+
+    /// The same study with `tuned` carriers following (true) or not
+    /// (false, the default) the level energies a point varies
+    /// ([`scheme::Prepared::with_tuned_follows`]).
+    pub fn with_tuned_follows(mut self, follows: bool) -> Study {
+        self.tuned_follows = follows;
+        self
     }
 
     /// The same study with this step budget for every point's propagation
@@ -81,12 +93,44 @@ impl Study {
         Ok(axes)
     }
 
+    /// Attach the `--with` specs to their axes: `(k, spec)` steps with
+    /// `axes[k]`. A path that is varied, or linked, twice is refused, as is
+    /// a path the scheme does not hold as a number.
+    pub fn link(&self, axes: &mut [Axis], links: &[(usize, VarySpec)]) -> Result<(), Error> {
+        for (k, s) in links {
+            let what = format!("--with {}", s.path);
+            if axes.iter().any(|a| a.path == s.path) {
+                return Err(bad(
+                    &what,
+                    format!(
+                        "{} is both varied (--vary) and linked (--with); give it once",
+                        s.path
+                    ),
+                ));
+            }
+            if axes.iter().flat_map(|a| &a.links).any(|l| l.path == s.path) {
+                return Err(bad(&what, format!("{} is linked twice", s.path)));
+            }
+            let (_, unit) = scheme::numeric_value_at(&self.text, &self.source.path, &s.path)
+                .map_err(|e| bad(&what, e.to_string()))?;
+            let axis = axes.get_mut(*k).ok_or_else(|| {
+                bad(
+                    &what,
+                    "a --with steps with the --vary before it; write one first",
+                )
+            })?;
+            axis.link(s, &unit)?;
+        }
+        Ok(())
+    }
+
     /// The model at a point of the grid.
     pub fn model_at(&self, grid: &Grid, coords: &[f64]) -> Result<Model, Error> {
         let prepared = match self.prepared.get() {
             Some(p) => p,
             None => {
-                let p = scheme::Prepared::new(&self.text, &self.source.path)?;
+                let p = scheme::Prepared::new(&self.text, &self.source.path)?
+                    .with_tuned_follows(self.tuned_follows);
                 self.prepared.get_or_init(|| p)
             }
         };
@@ -193,6 +237,25 @@ fn spelled_levels(text: &str) -> Result<String, Error> {
         }
         _ => Ok(text.to_string()),
     }
+}
+
+/// Parse the `--with` texts, each with the number of `--vary` options
+/// written before it on the command line: it steps with the last of them.
+/// Returns (axis index, spec) pairs; a `--with` before any `--vary` is
+/// refused.
+pub fn parse_links(texts: &[(String, usize)]) -> Result<Vec<(usize, VarySpec)>, Error> {
+    texts
+        .iter()
+        .map(|(t, before)| {
+            if *before == 0 {
+                return Err(bad(
+                    &format!("--with '{t}'"),
+                    "a --with moves a path together with the --vary written before it, and none is; put it after its --vary",
+                ));
+            }
+            Ok((before - 1, VarySpec::parse_link(&spelled_levels(t)?)?))
+        })
+        .collect()
 }
 
 /// Parse the `--vary` texts and check what needs no scheme (form, COUNT,

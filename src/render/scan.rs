@@ -8,7 +8,7 @@
 //! open files or print.
 
 use crate::report::Provenance;
-use crate::scan::{Axis, ScanRow, Shard, Spacing, TuneGoal, TuneReport};
+use crate::scan::{Axis, Link, ScanRow, Shard, Spacing, TuneGoal, TuneReport};
 use std::fmt::Write as _;
 
 /// Comment line carrying the scan hash.
@@ -19,6 +19,8 @@ pub const SHARD_PREFIX: &str = "# shard ";
 pub const GRID_PREFIX: &str = "# grid ";
 /// Comment lines of the varied values.
 pub const VARY_PREFIX: &str = "# vary ";
+/// Comment lines of the linked paths (`--with`), after their axis's line.
+pub const WITH_PREFIX: &str = "# with ";
 /// Comment line of the tolerance.
 pub const TOLERANCE_PREFIX: &str = "# tolerance ";
 
@@ -43,10 +45,15 @@ pub struct ScanHead<'a> {
 /// Name of an axis column: the path with its unit, e.g.
 /// `fields.probe.tuned.detuning [MHz]`.
 pub fn axis_label(a: &Axis) -> String {
-    if a.unit.is_empty() {
-        a.path.clone()
+    column_label(&a.path, &a.unit)
+}
+
+/// Name of a coordinate column: `PATH [UNIT]`, or PATH for a bare number.
+pub fn column_label(path: &str, unit: &str) -> String {
+    if unit.is_empty() {
+        path.to_string()
     } else {
-        format!("{} [{}]", a.path, a.unit)
+        format!("{path} [{unit}]")
     }
 }
 
@@ -54,10 +61,15 @@ pub fn axis_label(a: &Axis) -> String {
 /// end of every row.
 pub const OPEN_COLUMNS: [&str; 2] = ["lost", "scattered_photons"];
 
-/// Column names: one per axis, `P(<id>)` per level, `max_spectator`,
+/// Column names: one per axis and one per linked path (each after its
+/// axis), `P(<id>)` per level, `max_spectator`,
 /// `flagged`, `est(<id>)` per level, and with `open` [`OPEN_COLUMNS`].
 pub fn columns(axes: &[Axis], level_ids: &[String], open: bool) -> Vec<String> {
-    let mut c: Vec<String> = axes.iter().map(axis_label).collect();
+    let mut c: Vec<String> = axes
+        .iter()
+        .flat_map(Axis::columns)
+        .map(|(p, u)| column_label(p, u))
+        .collect();
     c.extend(level_ids.iter().map(|id| format!("P({id})")));
     c.push("max_spectator".into());
     c.push("flagged".into());
@@ -106,6 +118,18 @@ pub fn head(h: &ScanHead) -> String {
             a.count,
             a.spacing.as_str()
         );
+        for l in &a.links {
+            let _ = writeln!(
+                s,
+                "{WITH_PREFIX}{}: {} from {:e} to {:e}{}{}",
+                k + 1,
+                l.path,
+                l.start,
+                l.end,
+                if l.unit.is_empty() { "" } else { " " },
+                l.unit,
+            );
+        }
     }
     let (t, whence) = match h.tolerance {
         Some(t) => (t, "--tolerance"),
@@ -168,8 +192,8 @@ pub fn row(r: &ScanRow, open: bool) -> String {
     s
 }
 
-/// Read a data row back (without its '\n'); `open`: the head names
-/// [`OPEN_COLUMNS`].
+/// Read a data row back (without its '\n'); `n_axes`: the coordinate
+/// columns (axes and linked paths); `open`: the head names [`OPEN_COLUMNS`].
 pub fn parse_row(
     line: &str,
     n_axes: usize,
@@ -299,17 +323,49 @@ fn read_vary(line: &str) -> Option<Axis> {
         .parse()
         .ok()
         .filter(|&n: &usize| n > 0)?;
-    let (path, range) = tail.next()?.split_once(" from ")?;
+    let l = read_range(tail.next()?)?;
+    Some(Axis {
+        path: l.path,
+        unit: l.unit,
+        start: l.start,
+        end: l.end,
+        count,
+        spacing,
+        links: Vec::new(),
+    })
+}
+
+/// "PATH from START to END[ UNIT]" read back.
+fn read_range(text: &str) -> Option<Link> {
+    let (path, range) = text.split_once(" from ")?;
     let (start, end_unit) = range.split_once(" to ")?;
     let (end, unit) = end_unit.split_once(' ').unwrap_or((end_unit, ""));
-    Some(Axis {
+    Some(Link {
         path: path.to_string(),
         unit: unit.to_string(),
         start: start.parse().ok()?,
         end: end.parse().ok()?,
-        count,
-        spacing,
     })
+}
+
+/// The axes of the `# vary` lines with the `# with` lines attached.
+fn read_axes(comments: &[&str]) -> Result<Vec<Axis>, String> {
+    let mut axes: Vec<Axis> = Vec::new();
+    for c in comments {
+        if c.starts_with(VARY_PREFIX) {
+            axes.push(read_vary(c).ok_or_else(|| format!("cannot read '{c}'"))?);
+        } else if let Some(rest) = c.strip_prefix(WITH_PREFIX) {
+            let link = rest
+                .split_once(": ")
+                .and_then(|(k, r)| Some((k.parse::<usize>().ok()?, read_range(r)?)))
+                .filter(|(k, _)| *k == axes.len() && *k > 0);
+            let (_, link) = link.ok_or_else(|| format!("cannot read '{c}'"))?;
+            if let Some(a) = axes.last_mut() {
+                a.links.push(link);
+            }
+        }
+    }
+    Ok(axes)
 }
 
 /// Read the axes, tolerance, level ids and scheme file back from a head.
@@ -321,12 +377,8 @@ pub fn read_head(t: &ScanText) -> Result<HeadInfo, String> {
         .and_then(|(_, r)| r.rsplit_once(" sha256 "))
         .map(|(f, _)| f.to_string())
         .ok_or("no scheme line")?;
-    let axes = t
-        .comments
-        .iter()
-        .filter(|c| c.starts_with(VARY_PREFIX))
-        .map(|c| read_vary(c).ok_or_else(|| format!("cannot read '{c}'")))
-        .collect::<Result<Vec<_>, _>>()?;
+    let axes = read_axes(&t.comments)?;
+    let n_columns: usize = axes.iter().map(|a| 1 + a.links.len()).sum();
     let tolerance = t
         .comments
         .iter()
@@ -340,7 +392,7 @@ pub fn read_head(t: &ScanText) -> Result<HeadInfo, String> {
     let level_ids = t
         .header
         .split(',')
-        .skip(axes.len())
+        .skip(n_columns)
         .take_while(|c| *c != "max_spectator")
         .map(|c| {
             c.strip_prefix("P(")

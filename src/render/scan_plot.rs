@@ -93,7 +93,7 @@ pub fn plot_scan_text(text: &str, log_y: bool) -> Result<Result<String, plot::Pl
     let rows = t
         .rows
         .iter()
-        .map(|l| fmt::parse_row(l, grid.axes.len(), info.level_ids.len(), info.open))
+        .map(|l| fmt::parse_row(l, grid.columns().len(), info.level_ids.len(), info.open))
         .collect::<Result<Vec<_>, _>>()
         .map_err(cannot)?;
     Ok(scan_plot(

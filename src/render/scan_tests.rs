@@ -16,6 +16,7 @@ fn axes() -> Vec<Axis> {
         end: 50.0,
         count: 3,
         spacing: Spacing::Linear,
+        links: Vec::new(),
     }]
 }
 
@@ -242,4 +243,35 @@ fn tune_summary_without_an_answer_says_what_to_change() {
             "solves: 21 (21 on the coarse grid, 0 refining)",
         ]
     );
+}
+
+#[test]
+fn linked_paths_have_their_columns_and_read_back() {
+    let mut ax = axes();
+    ax[0].links.push(crate::scan::Link {
+        path: "fields.pump.tuned.detuning".into(),
+        unit: "GHz".into(),
+        start: 1.0,
+        end: -1.0,
+    });
+    let prov = Provenance::new("demo.yaml", "ab12");
+    let ids = ge();
+    let text = head(&ScanHead {
+        provenance: &prov,
+        axes: &ax,
+        tolerance: None,
+        default_tolerance: 1e-3,
+        points: 3,
+        hash: "00",
+        shard: None,
+        level_ids: &ids,
+        open: false,
+    });
+    assert!(text.contains("\n# with 1: fields.pump.tuned.detuning from 1e0 to -1e0 GHz\n"));
+    assert!(
+        text.contains("fields.probe.tuned.detuning [MHz],fields.pump.tuned.detuning [GHz],P(g)")
+    );
+    let info = read_head(&split(&text).unwrap()).unwrap();
+    assert_eq!(info.axes, ax);
+    assert_eq!(info.level_ids, ids);
 }

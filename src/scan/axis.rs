@@ -55,7 +55,18 @@ impl VarySpec {
     /// Parse one `--vary` value. `count_required`: the scan needs `:COUNT`,
     /// tune makes it optional.
     pub fn parse(text: &str, count_required: bool) -> Result<VarySpec, Error> {
-        let what = format!("--vary '{text}'");
+        VarySpec::parse_as("--vary", text, count_required)
+    }
+
+    /// Parse one `--with` value (`PATH=START..END[:COUNT]`): a path that
+    /// steps with the `--vary` before it. Its COUNT, if written, must equal
+    /// that axis's ([`Axis::link`] checks).
+    pub fn parse_link(text: &str) -> Result<VarySpec, Error> {
+        VarySpec::parse_as("--with", text, false)
+    }
+
+    fn parse_as(flag: &str, text: &str, count_required: bool) -> Result<VarySpec, Error> {
+        let what = format!("{flag} '{text}'");
         let form =
             "expected PATH=START..END:COUNT, e.g. fields.probe.tuned.detuning=-50MHz..50MHz:101";
         let (path, rest) = text
@@ -160,7 +171,9 @@ impl VarySpec {
 }
 
 /// One varied value of the scheme: a path, the unit its numbers are written
-/// in (empty for a bare number), and the values it takes.
+/// in (empty for a bare number), and the values it takes; with it, the
+/// paths linked to it (`--with`), each stepping with the same index over
+/// its own range.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Axis {
     pub path: String,
@@ -169,6 +182,58 @@ pub struct Axis {
     pub end: f64,
     pub count: usize,
     pub spacing: Spacing,
+    /// Linked paths in the order of their `--with` options.
+    pub links: Vec<Link>,
+}
+
+/// A path moved together with an axis (`--with PATH=START..END`): at the
+/// axis's i-th point it takes the i-th value of its own range, spaced as
+/// the axis is (so START with the axis's START, END with its END).
+#[derive(Debug, Clone, PartialEq)]
+pub struct Link {
+    pub path: String,
+    pub unit: String,
+    pub start: f64,
+    pub end: f64,
+}
+
+/// The value at fraction `t` of [start, end] (0 = START, 1 = END).
+fn at_fraction(start: f64, end: f64, spacing: Spacing, t: f64) -> f64 {
+    if t <= 0.0 {
+        return start;
+    }
+    if t >= 1.0 {
+        return end;
+    }
+    match spacing {
+        Spacing::Linear => start + (end - start) * t,
+        Spacing::Log => start * (end / start).powf(t),
+    }
+}
+
+/// The i-th of `count` values from start to end (the first is START, the
+/// last END exactly; a single point sits at START).
+fn nth(start: f64, end: f64, count: usize, spacing: Spacing, i: usize) -> f64 {
+    if count <= 1 || i == 0 {
+        return start;
+    }
+    if i + 1 >= count {
+        return end;
+    }
+    at_fraction(start, end, spacing, i as f64 / (count - 1) as f64)
+}
+
+/// The unit of a range: the one written with it, or the scheme's at the
+/// path; a unit on a path the scheme writes as a bare number is refused.
+fn range_unit(what: &str, written: &Option<String>, scheme_unit: &str) -> Result<String, Error> {
+    match (written, scheme_unit.is_empty()) {
+        (Some(u), true) => Err(bad(
+            what,
+            format!("the scheme writes a bare number at this path, but the range carries the unit '{u}'"),
+        )),
+        (Some(u), false) => Ok(u.clone()),
+        (None, _) => Ok(scheme_unit.to_string()),
+    }
 }
 
 impl Axis {
@@ -177,16 +242,7 @@ impl Axis {
     /// the spec's count (tune's default).
     pub fn new(spec: &VarySpec, scheme_unit: &str, log: bool, count: usize) -> Result<Axis, Error> {
         let what = format!("--vary {}", spec.path);
-        let unit = match (&spec.unit, scheme_unit.is_empty()) {
-            (Some(u), true) => {
-                return Err(bad(
-                    &what,
-                    format!("the scheme writes a bare number at this path, but the range carries the unit '{u}'"),
-                ))
-            }
-            (Some(u), false) => u.clone(),
-            (None, _) => scheme_unit.to_string(),
-        };
+        let unit = range_unit(&what, &spec.unit, scheme_unit)?;
         let spacing = spec.spacing(log)?;
         if count == 0 {
             return Err(bad(&what, "COUNT must be at least 1"));
@@ -198,43 +254,103 @@ impl Axis {
             end: spec.end,
             count,
             spacing,
+            links: Vec::new(),
         })
+    }
+
+    /// Link a `--with` spec to this axis, with the unit the scheme writes
+    /// at its path. Refused: a COUNT other than the axis's, a `:log` of its
+    /// own (a link is spaced as its axis), a unit on a bare-number path,
+    /// and on a log axis an end that is not positive.
+    pub fn link(&mut self, spec: &VarySpec, scheme_unit: &str) -> Result<(), Error> {
+        let what = format!("--with {}", spec.path);
+        if let Some(n) = spec.count.filter(|&n| n != self.count) {
+            return Err(bad(
+                &what,
+                format!(
+                    "the range has {n} points but the --vary {} it steps with has {}; a linked path takes the same number of points (write no COUNT to take it)",
+                    self.path, self.count
+                ),
+            ));
+        }
+        if spec.log {
+            return Err(bad(
+                &what,
+                format!(
+                    "a linked path is spaced as its --vary {} ({}); ':log' belongs on that --vary",
+                    self.path,
+                    self.spacing.as_str()
+                ),
+            ));
+        }
+        let unit = range_unit(&what, &spec.unit, scheme_unit)?;
+        if self.spacing == Spacing::Log && !(spec.start > 0.0 && spec.end > 0.0) {
+            return Err(bad(
+                &what,
+                format!(
+                    "the --vary {} it steps with is log-spaced, which needs positive START and END, found {} and {}",
+                    self.path, spec.start, spec.end
+                ),
+            ));
+        }
+        self.links.push(Link {
+            path: spec.path.clone(),
+            unit,
+            start: spec.start,
+            end: spec.end,
+        });
+        Ok(())
     }
 
     /// The value at fraction `t` of the range (0 = START, 1 = END), linear
     /// or geometric.
     pub fn at_fraction(&self, t: f64) -> f64 {
-        if t <= 0.0 {
-            return self.start;
-        }
-        if t >= 1.0 {
-            return self.end;
-        }
-        match self.spacing {
-            Spacing::Linear => self.start + (self.end - self.start) * t,
-            Spacing::Log => self.start * (self.end / self.start).powf(t),
-        }
+        at_fraction(self.start, self.end, self.spacing, t)
     }
 
     /// The i-th value (0-based); the first is START, the last END exactly.
     /// A single-point axis sits at START.
     pub fn value(&self, i: usize) -> f64 {
-        if self.count <= 1 || i == 0 {
-            return self.start;
-        }
-        if i + 1 >= self.count {
-            return self.end;
-        }
-        self.at_fraction(i as f64 / (self.count - 1) as f64)
+        nth(self.start, self.end, self.count, self.spacing, i)
+    }
+
+    /// The values of the i-th point: the axis's, then each linked path's
+    /// (the i-th value of its own range), in column order.
+    pub fn values(&self, i: usize) -> impl Iterator<Item = f64> + '_ {
+        std::iter::once(self.value(i)).chain(
+            self.links
+                .iter()
+                .map(move |l| nth(l.start, l.end, self.count, self.spacing, i)),
+        )
+    }
+
+    /// The (path, unit) of each column: the axis's, then its links'.
+    pub fn columns(&self) -> impl Iterator<Item = (&str, &str)> {
+        std::iter::once((self.path.as_str(), self.unit.as_str())).chain(
+            self.links
+                .iter()
+                .map(|l| (l.path.as_str(), l.unit.as_str())),
+        )
+    }
+
+    /// The paths this axis moves: its own and its links'.
+    pub fn paths(&self) -> impl Iterator<Item = &str> {
+        self.columns().map(|(p, _)| p)
     }
 
     /// The override value as the scheme writes it: "<number> <unit>", or the
     /// bare number for a key without unit. The number round-trips exactly.
     pub fn override_text(&self, v: f64) -> String {
-        if self.unit.is_empty() {
-            format!("{v}")
-        } else {
-            format!("{v} {}", self.unit)
-        }
+        override_text(&self.unit, v)
+    }
+}
+
+/// "<number> <unit>", or the bare number without a unit; the number
+/// round-trips exactly.
+pub fn override_text(unit: &str, v: f64) -> String {
+    if unit.is_empty() {
+        format!("{v}")
+    } else {
+        format!("{v} {unit}")
     }
 }

@@ -72,21 +72,28 @@ impl Grid {
         out
     }
 
-    /// The coordinates (one value per axis, in the axis's unit) of a point.
+    /// The coordinates of a point, one per column (each axis's value, then
+    /// its linked paths' values, in their units).
     pub fn point(&self, index: usize) -> Vec<f64> {
         self.indices(index)
             .iter()
             .zip(&self.axes)
-            .map(|(&i, a)| a.value(i))
+            .flat_map(|(&i, a)| a.values(i))
             .collect()
+    }
+
+    /// The (path, unit) of every coordinate column, in the order of
+    /// [`Grid::point`].
+    pub fn columns(&self) -> Vec<(&str, &str)> {
+        self.axes.iter().flat_map(Axis::columns).collect()
     }
 
     /// The (path, "<number> <unit>") overrides of a point, for the scheme parser.
     pub fn overrides(&self, coords: &[f64]) -> Vec<(String, String)> {
-        self.axes
-            .iter()
+        self.columns()
+            .into_iter()
             .zip(coords)
-            .map(|(a, &v)| (a.path.clone(), a.override_text(v)))
+            .map(|((p, u), &v)| (p.to_string(), super::axis::override_text(u, v)))
             .collect()
     }
 }
@@ -97,7 +104,9 @@ pub fn hex(bytes: &[u8]) -> String {
 }
 
 /// The identity of a scan: SHA-256 (hex) of the scheme bytes, the axes
-/// (path, unit, start, end, count, spacing) and the tolerance override.
+/// (path, unit, start, end, count, spacing), their linked paths (path,
+/// unit, start, end; hashed only when there are any, so a scan without
+/// links keeps its hash) and the tolerance override.
 /// Shards of one scan share it; it does not depend on threads or shard.
 pub fn scan_hash(scheme_bytes: &[u8], axes: &[Axis], tolerance: Option<f64>) -> String {
     let mut h = Sha256::new();
@@ -114,6 +123,20 @@ pub fn scan_hash(scheme_bytes: &[u8], axes: &[Axis], tolerance: Option<f64>) -> 
         h.update(a.end.to_bits().to_le_bytes());
         h.update((a.count as u64).to_le_bytes());
         h.update([a.spacing as u8]);
+    }
+    if axes.iter().any(|a| !a.links.is_empty()) {
+        h.update(b"links\0");
+        for a in axes {
+            h.update((a.links.len() as u64).to_le_bytes());
+            for l in &a.links {
+                for s in [&l.path, &l.unit] {
+                    h.update((s.len() as u64).to_le_bytes());
+                    h.update(s.as_bytes());
+                }
+                h.update(l.start.to_bits().to_le_bytes());
+                h.update(l.end.to_bits().to_le_bytes());
+            }
+        }
     }
     match tolerance {
         None => h.update([0u8]),

@@ -20,7 +20,7 @@ mod shard;
 #[cfg(test)]
 mod tests;
 
-pub use axis::{Axis, Spacing, VarySpec};
+pub use axis::{Axis, Link, Spacing, VarySpec};
 pub use grid::{check_size, hex, scan_hash, Grid};
 pub use parallel::{run_ordered, thread_pool};
 pub use shard::{merge_order, Shard};

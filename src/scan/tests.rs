@@ -257,3 +257,41 @@ fn an_error_stops_the_scan_and_nothing_after_it_is_written() {
     assert!(r.unwrap_err().to_string().contains("full"));
     assert!(thread_pool(Some(0)).is_err());
 }
+
+#[test]
+fn linked_paths_step_with_their_axis_and_enter_the_hash() {
+    let mut a = axis("a.x=0..10:5");
+    a.link(&VarySpec::parse_link("a.y=20..0").unwrap(), "GHz")
+        .unwrap();
+    let g = Grid::new(vec![a.clone(), axis("a.z=1..2:2")], false).unwrap();
+    assert_eq!(g.len(), 10);
+    // Point 3 (row-major): x index 1, z index 1; y steps with x.
+    assert_eq!(g.point(3), vec![2.5, 15.0, 2.0]);
+    assert_eq!(g.point(9), vec![10.0, 0.0, 2.0]);
+    assert_eq!(
+        g.overrides(&g.point(3))[1],
+        ("a.y".to_string(), "15 GHz".to_string())
+    );
+    let plain = scan_hash(b"s", &[axis("a.x=0..10:5")], None);
+    assert_ne!(plain, scan_hash(b"s", std::slice::from_ref(&a), None));
+    // Refused: another count, ':log' of its own, a unit on a bare number,
+    // a non-positive end on a log axis.
+    let mut b = axis("a.x=0..10:5");
+    for (s, unit) in [
+        ("a.y=1..2:4", "MHz"),
+        ("a.y=1..2:log", "MHz"),
+        ("a.y=1..2 MHz", ""),
+    ] {
+        let e = b.link(&VarySpec::parse_link(s).unwrap(), unit).unwrap_err();
+        assert_eq!(e.exit_code(), crate::error::EXIT_BAD_INPUT, "{s}");
+    }
+    let mut l = Axis::new(&spec("a.b=1..100:3"), "ns", true, 3).unwrap();
+    assert!(l
+        .link(&VarySpec::parse_link("a.c=-1..1").unwrap(), "ns")
+        .is_err());
+    l.link(&VarySpec::parse_link("a.c=10..1000").unwrap(), "ns")
+        .unwrap();
+    let mid: Vec<f64> = l.values(1).collect();
+    approx::assert_relative_eq!(mid[1], 100.0, max_relative = 1e-14);
+    assert!(b.links.is_empty());
+}

@@ -147,7 +147,9 @@ pub fn parse(text: &str, file_name: &str) -> Result<Model, SchemeError> {
 /// key must exist in the file, or be a numeric key the format knows whose
 /// parent mapping exists or (for `window` and `solver`) can be created.
 /// A value that is not numeric, a path to a mapping, list or text value, or
-/// an unknown path is an error naming the path.
+/// an unknown path is an error naming the path. An override under `levels`
+/// or `manifolds` leaves every `tuned` carrier where the scheme as written
+/// puts it ([`Prepared::with_tuned_follows`]).
 pub fn parse_with_overrides(
     text: &str,
     file_name: &str,
@@ -185,22 +187,45 @@ pub struct Prepared {
     text: String,
     file: String,
     value: Value,
+    /// The transition frequency of every `tuned` carrier in the scheme as
+    /// written (by the key path of its `tuned` mapping).
+    lines: Vec<(String, f64)>,
+    /// `tuned` carriers follow varied level energies (the carrier is
+    /// recomputed from the overridden levels).
+    tuned_follows: bool,
 }
 
 impl Prepared {
     /// Parse and validate `text` (it must be valid on its own).
     pub fn new(text: &str, file_name: &str) -> Result<Prepared, SchemeError> {
         let raw = read_raw(text, file_name)?;
-        validate_raw(&raw, text, file_name, Vec::new())?;
+        let (_, lines) = validate_raw_with(&raw, text, file_name, Vec::new(), None)?;
         let value = raw_value(&raw, file_name)?;
         Ok(Prepared {
             text: text.to_string(),
             file: file_name.to_string(),
             value,
+            lines,
+            tuned_follows: false,
         })
     }
 
-    /// The model with the given overrides (see [`parse_with_overrides`]).
+    /// Whether a `tuned` carrier follows its levels when an override moves
+    /// them. By default (false) an override of any path under `levels` or
+    /// `manifolds` (energies, hyperfine constants, g-factors) leaves every
+    /// `tuned` carrier at the transition frequency of the scheme as written
+    /// plus its (possibly overridden) detuning, so a varied level energy
+    /// moves the level through the laser. With `true`, the carrier is
+    /// recomputed from the overridden levels (the laser follows the level).
+    /// Other overrides (the magnetic field, a detuning) recompute the
+    /// carrier from the levels either way.
+    pub fn with_tuned_follows(mut self, follows: bool) -> Prepared {
+        self.tuned_follows = follows;
+        self
+    }
+
+    /// The model with the given overrides (see [`parse_with_overrides`] and
+    /// [`Prepared::with_tuned_follows`]).
     pub fn with_overrides(&self, overrides: &[(String, String)]) -> Result<Model, SchemeError> {
         let (text, file_name) = (self.text.as_str(), self.file.as_str());
         let mut value = self.value.clone();
@@ -233,7 +258,10 @@ impl Prepared {
                 Diagnostic::whole_file("overrides of numeric values", e.to_string()),
             )
         })?;
-        validate_raw(&raw, text, file_name, overridden)
+        let fixed = (!self.tuned_follows
+            && overrides.iter().any(|(p, _)| overrides::moves_levels(p)))
+        .then(|| self.lines.clone());
+        validate_raw_with(&raw, text, file_name, overridden, fixed).map(|(m, _)| m)
     }
 }
 
@@ -243,12 +271,26 @@ fn validate_raw(
     file_name: &str,
     overridden: Vec<String>,
 ) -> Result<Model, SchemeError> {
+    validate_raw_with(raw, text, file_name, overridden, None).map(|(m, _)| m)
+}
+
+/// [`validate_raw`] with the `tuned` lines fixed (`fixed`), returning the
+/// lines the carriers were set from.
+fn validate_raw_with(
+    raw: &RawScheme,
+    text: &str,
+    file_name: &str,
+    overridden: Vec<String>,
+    fixed: Option<Vec<(String, f64)>>,
+) -> Result<(Model, Vec<(String, f64)>), SchemeError> {
     let mut ctx = validate::Ctx::new(text, overridden);
+    ctx.fixed_lines = fixed;
     let model = validate::validate(raw, &mut ctx);
+    let lines = std::mem::take(&mut ctx.tuned_lines);
     let suppressed = ctx.suppressed;
     let mut diags = ctx.diags;
     match model {
-        Some(m) if diags.is_empty() => Ok(m),
+        Some(m) if diags.is_empty() => Ok((m, lines)),
         _ => {
             if diags.is_empty() {
                 // Defensive: validation declined without saying why.

@@ -61,6 +61,14 @@ pub fn numeric_value_at(
 /// {manifold: S, F: 2, m_F: 2}`, spaces optional) rewritten to the
 /// generated ids they stand for (`initial.mixture.S_F2_m+2`), so that a
 /// scan's columns and hash see one spelling. Err says what is wrong.
+/// Whether an override of `path` may move level energies: its first key is
+/// `levels` or `manifolds`. Such a scan keeps `tuned` carriers at the
+/// scheme's own lines unless asked to follow ([`super::Prepared::with_tuned_follows`]).
+pub(crate) fn moves_levels(path: &str) -> bool {
+    let first = path.split(['.', '[']).next().unwrap_or_default().trim();
+    first == "levels" || first == "manifolds"
+}
+
 pub fn level_names_in_path(path: &str) -> Result<String, String> {
     let mut out = String::new();
     let mut rest = path;
@@ -483,5 +491,24 @@ mod tests {
         assert_eq!(split_path("a.b.2.c").unwrap(), vec!["a", "b", "2", "c"]);
         assert!(split_path("a..b").is_err());
         assert!(split_path("a[1").is_err());
+    }
+
+    #[test]
+    fn level_and_manifold_paths_move_levels() {
+        for p in [
+            "levels.e.energy",
+            "manifolds.S.hyperfine.A",
+            "levels[1].energy",
+        ] {
+            assert!(moves_levels(p), "{p}");
+        }
+        for p in [
+            "magnetic_field",
+            "fields.probe.tuned.detuning",
+            "levelsx.a",
+            "initial.g",
+        ] {
+            assert!(!moves_levels(p), "{p}");
+        }
     }
 }

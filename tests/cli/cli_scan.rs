@@ -734,6 +734,9 @@ fn help_of_the_new_commands_states_syntax_units_and_examples() {
         "--plot",
         "--log-y",
         "--force",
+        "--with",
+        "PATH=START..END",
+        "--tuned-follows",
         "Example",
         "IEC 60825-1",
     ] {

@@ -136,6 +136,7 @@ const COOKBOOK: &[(&str, i32)] = &[
     ("raman_own_legs", 0),
     ("raman_retuned", 0),
     ("sigma_pumping_pure", 0),
+    ("velocity_ladder", 0),
 ];
 
 fn root() -> &'static Path {

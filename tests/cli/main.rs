@@ -18,4 +18,5 @@ mod model_text;
 mod open_csv;
 mod output_files;
 mod readme;
+mod scan_links;
 mod sublevels;

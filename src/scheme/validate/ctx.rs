@@ -22,6 +22,13 @@ pub(crate) struct Ctx<'a> {
     overridden: Vec<String>,
     /// Problems found beyond [`MAX_DIAGNOSTICS`], counted but not listed.
     pub(crate) suppressed: usize,
+    /// The transition frequency (rad/s) each `tuned` carrier was set from,
+    /// by the key path of its `tuned` mapping, as validation met them.
+    pub(crate) tuned_lines: Vec<(String, f64)>,
+    /// When set, a `tuned` carrier takes its transition frequency from
+    /// here (the scheme as written) instead of the levels it is given:
+    /// a scan that moves level energies moves them through the laser.
+    pub(crate) fixed_lines: Option<Vec<(String, f64)>>,
 }
 
 /// Sign rule for a quantity.
@@ -40,7 +47,21 @@ impl<'a> Ctx<'a> {
             diags: Vec::new(),
             overridden,
             suppressed: 0,
+            tuned_lines: Vec::new(),
+            fixed_lines: None,
         }
+    }
+
+    /// The transition frequency of the `tuned` carrier at `key`: the fixed
+    /// one when set (and known for this key), else `own`; recorded.
+    pub(super) fn tuned_line(&mut self, key: String, own: f64) -> f64 {
+        let w = self
+            .fixed_lines
+            .as_ref()
+            .and_then(|f| f.iter().find(|(k, _)| *k == key))
+            .map_or(own, |&(_, w)| w);
+        self.tuned_lines.push((key, w));
+        w
     }
 
     pub(super) fn push_at(

@@ -215,7 +215,8 @@ fn tuned(
     else {
         return None;
     };
-    let w_ab = (ea - eb).abs();
+    // In a scan that moves levels, the scheme as written sets the line.
+    let w_ab = ctx.tuned_line(tp.to_string(), (ea - eb).abs());
     let w = w_ab + det;
     if w > 0.0 && w.is_finite() {
         return Some(w);
